@@ -1,0 +1,568 @@
+"""The case-file schema: TOML text -> validated, read-only sections of SI floats.
+
+A case file is TOML. Every dimensional value is a quoted string with its unit (``"85 degC"``),
+converted to SI here, once. Unknown sections and keys are errors, because a silently ignored typo
+is a safety risk. The schema is declarative (:data:`SCHEMA`): to add a key, add a :class:`Field`.
+
+Nothing here computes a screening figure; :mod:`screen.engine` does that.
+"""
+
+from __future__ import annotations
+
+import copy
+import difflib
+import hashlib
+import math
+import os
+from dataclasses import dataclass, field
+from typing import Any
+
+from screen.errors import CaseError
+from screen.units import ParsedQuantity, parse_dimensionless, parse_quantity
+
+#: Largest case file read [bytes]; a real case is a few kB.
+MAX_CASE_BYTES = 1_000_000
+
+
+@dataclass(frozen=True)
+class Field:
+    """Declaration of one case-file key.
+
+    ``kind`` is a quantity kind of :data:`screen.units.DIMENSIONS`, or one of ``"text"``,
+    ``"choice"``, ``"number"`` (dimensionless), ``"bool"``.
+    """
+
+    kind: str
+    required: bool = False
+    choices: tuple[str, ...] = ()
+    minimum: float | None = None
+    maximum: float | None = None
+    exclusive_minimum: bool = False
+    exclusive_maximum: bool = False
+    doc: str = ""
+
+
+def _f(kind, doc="", **kw) -> Field:
+    return Field(kind=kind, doc=doc, **kw)
+
+
+POSITIVE = dict(minimum=0.0, exclusive_minimum=True)
+FRACTION = dict(minimum=0.0, maximum=1.0)
+
+#: The schema: section -> key -> Field. ``vessel`` may be a table or an array of tables.
+SCHEMA: dict[str, dict[str, Field]] = {
+    "case": {
+        "title": _f("text", "Short title of the assessed step", required=True),
+        "revision": _f("text", "Revision label of the case"),
+        "author": _f("text", "Who prepared the data"),
+        "date": _f("text", "Date of the data set (free text, e.g. 2026-11-30)"),
+        "notes": _f("text", "Free-text notes, e.g. data sources"),
+    },
+    "mass": {
+        "amount": _f("mass", "Reaction mass at the end of the step", required=True, **POSITIVE),
+        "specific_heat": _f("specific_heat", "Specific heat capacity c'p of the reaction mass",
+                            required=True, **POSITIVE),
+        "density": _f("density", "Density of the reaction mass (for vessel fill)", **POSITIVE),
+    },
+    "process": {
+        "temperature": _f("temperature", "Normal process temperature T_p", required=True),
+        "mode": _f("choice", "batch or semi-batch", required=True, choices=("batch", "semi-batch")),
+        "accumulation": _f("number", "Maximum thermal accumulation X_ac (0..1)", **FRACTION),
+        "accumulation_basis": _f("text", "How a batch accumulation below 1 was established"),
+        "accumulation_mass_ratio": _f(
+            "number", "Mass present at maximum accumulation over final mass (0..1]",
+            minimum=0.0, maximum=1.0, exclusive_minimum=True),
+        "max_technical_temperature": _f(
+            "temperature", "MTT: boiling point at operating pressure or relief temperature"),
+        "mtt_basis": _f("text", "What the MTT is (e.g. boiling point of toluene at 1.013 bar)"),
+    },
+    "synthesis": {
+        "energy": _f("specific_energy", "Heat of the desired reaction per kg of final mass",
+                     **POSITIVE),
+        "molar_enthalpy": _f("molar_energy", "Molar reaction enthalpy (negative: exothermic)"),
+        "limiting_amount": _f("amount_of_substance", "Limiting reagent in the batch", **POSITIVE),
+        "activation_energy": _f("molar_energy", "Activation energy of the desired reaction",
+                                **POSITIVE),
+        "peak_heat_release_rate": _f("specific_power",
+                                     "Peak heat release rate measured at T_p", **POSITIVE),
+        "dosing_time": _f("time", "Dosing time of the semi-batch feed", **POSITIVE),
+    },
+    "decomposition": {
+        "energy": _f("specific_energy", "Decomposition energy per kg of reaction mass",
+                     **POSITIVE),
+        "model": _f("choice", "Kinetic model", choices=("zero-order", "nth-order", "autocatalytic")),
+        "activation_energy": _f("molar_energy", "Activation energy E", **POSITIVE),
+        "reference_rate": _f("specific_power", "Heat release rate of the fresh mass at T_ref",
+                             **POSITIVE),
+        "reference_temperature": _f("temperature", "Temperature of the reference rate"),
+        "pre_exponential_factor": _f("frequency", "Arrhenius pre-exponential factor A",
+                                     **POSITIVE),
+        "order": _f("number", "Reaction order n", minimum=0.0, maximum=10.0),
+        "autocatalytic_order": _f("number", "Autocatalytic order m", minimum=0.0, maximum=10.0),
+        "initial_conversion": _f("number", "Initial conversion a0 (autocatalytic)",
+                                 minimum=0.0, maximum=1.0, exclusive_minimum=True,
+                                 exclusive_maximum=True),
+        "onset_temperature": _f("temperature", "DSC onset (information only)"),
+        "onset_method": _f("text", "How the onset was obtained (instrument, crucible, scan rate)"),
+        "lowest_measured_temperature": _f(
+            "temperature", "Lowest temperature at which the kinetics were measured"),
+        "source": _f("text", "Where the kinetics come from (report, DSC run ids)"),
+    },
+    "vessel": {
+        "name": _f("text", "Vessel name", required=True),
+        "batch_mass": _f("mass", "Reaction mass in this vessel (default: mass.amount)", **POSITIVE),
+        "heat_transfer_area": _f("area", "Wetted heat-transfer area", **POSITIVE),
+        "heat_transfer_coefficient": _f("heat_transfer_coefficient", "Overall U", **POSITIVE),
+        "coolant_temperature": _f("temperature", "Coolant (jacket) temperature T_c"),
+        "min_coolant_temperature": _f("temperature", "Lowest coolant temperature available"),
+        "volume": _f("volume", "Nominal vessel volume", **POSITIVE),
+        "diameter": _f("length", "Inner diameter", **POSITIVE),
+        "bottom": _f("choice", "Bottom head shape",
+                     choices=("flat", "torispherical", "elliptical")),
+        "jacket_height": _f("length", "Height of the jacket top above the bottom", **POSITIVE),
+        "heat_losses": _f("thermal_conductance", "Heat losses to ambient", minimum=0.0),
+        "ambient_temperature": _f("temperature", "Ambient temperature for heat losses"),
+    },
+}
+
+#: Sections that may appear at most once and are required.
+REQUIRED_SECTIONS = ("case", "mass", "process", "synthesis")
+
+
+class Section:
+    """Read-only view of one validated section: attribute access, ``None`` for absent keys."""
+
+    def __init__(self, name: str, values: dict[str, Any], declared: dict[str, Field]):
+        object.__setattr__(self, "_name", name)
+        object.__setattr__(self, "_values", dict(values))
+        object.__setattr__(self, "_declared", declared)
+
+    def __getattr__(self, key):
+        declared = object.__getattribute__(self, "_declared")
+        if key in declared:
+            return object.__getattribute__(self, "_values").get(key)
+        raise AttributeError(f"section [{object.__getattribute__(self, '_name')}] has no key {key!r}")
+
+    def __setattr__(self, key, value):  # pragma: no cover - guard
+        raise AttributeError("case sections are read-only")
+
+    def get(self, key, default=None):
+        value = self._values.get(key)
+        return default if value is None else value
+
+    def given(self, key) -> bool:
+        """True when the key was present in the file (or set by an override)."""
+        return key in self._values
+
+    def as_dict(self) -> dict[str, Any]:
+        return dict(self._values)
+
+    def __repr__(self):  # pragma: no cover - debugging aid
+        return f"Section({self._name!r}, {self._values!r})"
+
+
+@dataclass(frozen=True)
+class InputRecord:
+    """One input as read: key path, text as written, SI value and unit (for the report)."""
+
+    key: str
+    text: str
+    value: Any
+    unit: str
+
+
+@dataclass(frozen=True)
+class Case:
+    """A validated case: sections of SI floats plus provenance."""
+
+    path: str
+    sha256: str
+    raw: dict
+    sections: dict[str, Section]
+    vessels: tuple[Section, ...]
+    inputs: tuple[InputRecord, ...]
+    overrides: tuple[str, ...] = ()
+    uncertainties: dict[str, ParsedQuantity] = field(default_factory=dict)
+    warnings: tuple[str, ...] = ()
+    extras: dict[str, Any] = field(default_factory=dict)
+
+    @property
+    def title(self) -> str:
+        return self.sections["case"].title
+
+    def __getattr__(self, name):
+        sections = object.__getattribute__(self, "sections")
+        if name in sections:
+            return sections[name]
+        if name in SCHEMA:
+            return Section(name, {}, SCHEMA[name])
+        raise AttributeError(name)
+
+
+# --------------------------------------------------------------------------------------------
+# Reading
+
+
+def read_case_text(path: str) -> tuple[dict, str]:
+    """Read and TOML-decode a case file. Returns (data, sha256 of the bytes)."""
+    import tomllib
+
+    if not os.path.exists(path):
+        raise CaseError("file not found; give the path of a TOML case file (see cases/)",
+                        path=str(path))
+    if os.path.isdir(path):
+        raise CaseError("is a directory; give the path of a TOML case file", path=str(path))
+    try:
+        size = os.path.getsize(path)
+        if size > MAX_CASE_BYTES:
+            raise CaseError(f"file is {size} bytes; a case file is at most {MAX_CASE_BYTES} bytes "
+                            f"(is this the right file?)", path=str(path))
+        with open(path, "rb") as handle:
+            data = handle.read()
+    except OSError as exc:
+        raise CaseError(f"cannot read the file ({exc.strerror}); check the path and permissions",
+                        path=str(path)) from None
+    digest = hashlib.sha256(data).hexdigest()
+    if not data.strip():
+        raise CaseError("file is empty; a case needs at least [case], [mass], [process], "
+                        "[synthesis] and [decomposition] (copy one from cases/)", path=str(path))
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError:
+        raise CaseError("file is not UTF-8 text (a binary file?); save the case as UTF-8 TOML",
+                        path=str(path)) from None
+    if "\x00" in text:
+        raise CaseError("file contains NUL bytes (a binary file?); give a TOML text file",
+                        path=str(path))
+    try:
+        parsed = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise CaseError(f"TOML syntax error: {exc}; values with units must be quoted strings, "
+                        f"e.g. energy = \"180 kJ/kg\"", path=str(path)) from None
+    return parsed, digest
+
+
+def _suggest(key: str, options) -> str:
+    close = difflib.get_close_matches(key, list(options), n=1, cutoff=0.6)
+    return f" (did you mean {close[0]!r}?)" if close else ""
+
+
+def _apply_override(raw: dict, text: str) -> None:
+    """Apply one ``KEY=VALUE`` override to the raw TOML dict, in place."""
+    if "=" not in text:
+        raise CaseError(f"--set {text!r}: expected KEY=VALUE, e.g. --set 'process.temperature=70 degC'",
+                        key="--set")
+    key, value = (part.strip() for part in text.split("=", 1))
+    parts = key.split(".")
+    if len(parts) < 2 or parts[0] not in SCHEMA:
+        raise CaseError(f"--set {text!r}: the key must be SECTION.KEY with SECTION one of "
+                        f"{', '.join(SCHEMA)}", key="--set")
+    section = parts[0]
+    targets: list[dict]
+    if section == "vessel":
+        vessels = raw.get("vessel")
+        if isinstance(vessels, dict):
+            vessels = [vessels]
+            raw["vessel"] = vessels
+        if not vessels:
+            raise CaseError(f"--set {text!r}: the case has no [vessel]", key="--set")
+        if len(parts) == 3:
+            try:
+                index = int(parts[1])
+            except ValueError:
+                raise CaseError(f"--set {text!r}: use vessel.KEY (all vessels) or vessel.N.KEY "
+                                f"(N = 1, 2, ... in file order)", key="--set") from None
+            if not 1 <= index <= len(vessels):
+                raise CaseError(f"--set {text!r}: vessel number {index} does not exist "
+                                f"(the case has {len(vessels)})", key="--set")
+            targets, name = [vessels[index - 1]], parts[2]
+        elif len(parts) == 2:
+            targets, name = list(vessels), parts[1]
+        else:
+            raise CaseError(f"--set {text!r}: use vessel.KEY or vessel.N.KEY", key="--set")
+    else:
+        if len(parts) != 2:
+            raise CaseError(f"--set {text!r}: the key must be SECTION.KEY", key="--set")
+        targets, name = [raw.setdefault(section, {})], parts[1]
+        if not isinstance(targets[0], dict):
+            raise CaseError(f"--set {text!r}: [{section}] is not a table in the case", key="--set")
+    declared = SCHEMA[section]
+    if name not in declared:
+        raise CaseError(f"--set {text!r}: [{section}] has no key {name!r}{_suggest(name, declared)}",
+                        key="--set")
+    converted: Any = value
+    if declared[name].kind == "number":
+        try:
+            converted = float(value)
+        except ValueError:
+            converted = value  # "35 %" or "0.3 ± 0.05" is parsed later
+    elif declared[name].kind == "bool":
+        converted = value.lower() in ("1", "true", "yes")
+    for target in targets:
+        target[name] = converted
+
+
+def _validate_value(name: str, spec: Field, raw_value, key: str, path: str,
+                    inputs: list, uncertainties: dict):
+    if spec.kind == "text":
+        if not isinstance(raw_value, str):
+            raise CaseError(f"got {raw_value!r}; expected text in quotes", key, path)
+        inputs.append(InputRecord(key, raw_value, raw_value, ""))
+        return raw_value
+    if spec.kind == "choice":
+        if not isinstance(raw_value, str) or raw_value not in spec.choices:
+            raise CaseError(f"got {raw_value!r}; expected one of "
+                            f"{', '.join(repr(c) for c in spec.choices)}", key, path)
+        inputs.append(InputRecord(key, raw_value, raw_value, ""))
+        return raw_value
+    if spec.kind == "bool":
+        if not isinstance(raw_value, bool):
+            raise CaseError(f"got {raw_value!r}; expected true or false", key, path)
+        inputs.append(InputRecord(key, str(raw_value).lower(), raw_value, ""))
+        return raw_value
+    if spec.kind == "number":
+        parsed = parse_dimensionless(raw_value, key, path)
+    else:
+        parsed = parse_quantity(raw_value, spec.kind, key, path)
+    value = parsed.value
+    low, high = spec.minimum, spec.maximum
+    shown = raw_value if isinstance(raw_value, str) else repr(raw_value)
+    if low is not None and (value < low or (spec.exclusive_minimum and value == low)):
+        relation = "above" if spec.exclusive_minimum else "at least"
+        raise CaseError(f"got {shown}; must be {relation} {low:g} ({spec.doc.lower() or name})",
+                        key, path)
+    if high is not None and (value > high or (spec.exclusive_maximum and value == high)):
+        relation = "below" if spec.exclusive_maximum else "at most"
+        raise CaseError(f"got {shown}; must be {relation} {high:g} ({spec.doc.lower() or name})",
+                        key, path)
+    inputs.append(InputRecord(key, str(raw_value), value, parsed.si_unit))
+    if parsed.std is not None:
+        uncertainties[key] = parsed
+    return value
+
+
+def _validate_table(section: str, table, key_prefix: str, path: str, inputs: list,
+                    uncertainties: dict) -> dict[str, Any]:
+    declared = SCHEMA[section]
+    if not isinstance(table, dict):
+        raise CaseError(f"expected a table [{section}], got {type(table).__name__}", key_prefix, path)
+    values: dict[str, Any] = {}
+    for name, raw_value in table.items():
+        key = f"{key_prefix}.{name}"
+        if name not in declared:
+            raise CaseError(f"unknown key{_suggest(name, declared)}; [{section}] accepts "
+                            f"{', '.join(declared)}", key, path)
+        values[name] = _validate_value(name, declared[name], raw_value, key, path, inputs,
+                                       uncertainties)
+    for name, spec in declared.items():
+        if spec.required and name not in values:
+            raise CaseError(f"missing required key ({spec.doc}); add it to [{section}]",
+                            f"{key_prefix}.{name}", path)
+    return values
+
+
+def load_case(path, overrides=None) -> Case:
+    """Load, validate and convert a case file to SI.
+
+    Parameters
+    ----------
+    path : str or path-like
+        TOML case file.
+    overrides : iterable of str, optional
+        ``KEY=VALUE`` what-if overrides applied before validation (``process.temperature=70 degC``).
+
+    Returns
+    -------
+    Case
+
+    Raises
+    ------
+    CaseError
+        With the file, key path, value received and what is accepted.
+    """
+    path = str(path)
+    raw, digest = read_case_text(path)
+    raw = copy.deepcopy(raw)
+    overrides = tuple(overrides or ())
+    for text in overrides:
+        try:
+            _apply_override(raw, text)
+        except CaseError as exc:
+            raise CaseError(exc.message, exc.key, path) from None
+    return build_case(raw, path=path, sha256=digest, overrides=overrides)
+
+
+def build_case(raw: dict, path: str = "<memory>", sha256: str = "", overrides=()) -> Case:
+    """Validate an already decoded case dictionary (see :func:`load_case`)."""
+    inputs: list[InputRecord] = []
+    uncertainties: dict[str, ParsedQuantity] = {}
+    warnings: list[str] = []
+    for name in raw:
+        if name not in SCHEMA:
+            raise CaseError(f"unknown section [{name}]{_suggest(name, SCHEMA)}; accepted sections: "
+                            f"{', '.join(SCHEMA)}", name, path)
+    for name in REQUIRED_SECTIONS:
+        if name not in raw:
+            raise CaseError(f"missing section [{name}]; copy it from an example in cases/", name, path)
+    sections: dict[str, Section] = {}
+    for name in SCHEMA:
+        if name == "vessel" or name not in raw:
+            continue
+        values = _validate_table(name, raw[name], name, path, inputs, uncertainties)
+        sections[name] = Section(name, values, SCHEMA[name])
+    vessels_raw = raw.get("vessel", [])
+    if isinstance(vessels_raw, dict):
+        vessels_raw = [vessels_raw]
+    if not isinstance(vessels_raw, list):
+        raise CaseError("expected [vessel] or [[vessel]] tables", "vessel", path)
+    vessels = []
+    for index, table in enumerate(vessels_raw, start=1):
+        prefix = f"vessel.{index}" if len(vessels_raw) > 1 else "vessel"
+        values = _validate_table("vessel", table, prefix, path, inputs, uncertainties)
+        vessels.append(Section("vessel", values, SCHEMA["vessel"]))
+    names = [v.name for v in vessels]
+    if len(set(names)) != len(names):
+        raise CaseError("vessel names must be unique", "vessel.name", path)
+
+    _check_consistency(sections, vessels, path, warnings)
+    return Case(path=path, sha256=sha256, raw=raw, sections=sections, vessels=tuple(vessels),
+                inputs=tuple(inputs), overrides=tuple(overrides), uncertainties=uncertainties,
+                warnings=tuple(warnings))
+
+
+def _check_consistency(sections, vessels, path, warnings) -> None:
+    """Cross-field rules: sign conventions, required combinations, impossible orderings."""
+    process = sections["process"]
+    synthesis = sections["synthesis"]
+    raw_synth = synthesis.as_dict()
+    if "molar_enthalpy" in raw_synth:
+        if raw_synth["molar_enthalpy"] >= 0:
+            raise CaseError(
+                "molar_enthalpy must be negative for an exothermic reaction (sign convention: "
+                "dH_r < 0 releases heat); `energy` values are positive heats released",
+                "synthesis.molar_enthalpy", path)
+        if "limiting_amount" not in raw_synth:
+            raise CaseError("molar_enthalpy needs limiting_amount (mol of limiting reagent in the "
+                            "batch), e.g. limiting_amount = \"2400 mol\"",
+                            "synthesis.limiting_amount", path)
+        if "energy" in raw_synth:
+            raise CaseError("give either energy or molar_enthalpy with limiting_amount, not both",
+                            "synthesis.energy", path)
+    elif "energy" not in raw_synth:
+        raise CaseError("missing the heat of reaction: give energy (e.g. \"180 kJ/kg\", positive) "
+                        "or molar_enthalpy (negative) with limiting_amount",
+                        "synthesis.energy", path)
+
+    mode = process.mode
+    if mode == "semi-batch":
+        if not process.given("accumulation"):
+            raise CaseError("semi-batch needs the maximum thermal accumulation (0..1) from "
+                            "reaction calorimetry, e.g. accumulation = 0.35",
+                            "process.accumulation", path)
+        if not process.given("accumulation_mass_ratio"):
+            warnings.append(
+                "process.accumulation_mass_ratio not given: taken as 1 (accumulated heat spread "
+                "over the final mass); MTSR may then be underestimated if the maximum "
+                "accumulation occurs before the end of dosing.")
+    else:
+        if process.given("accumulation") and process.accumulation < 1.0 and not process.given(
+                "accumulation_basis"):
+            raise CaseError("a batch accumulation below 1 needs accumulation_basis stating the "
+                            "measured conversion at the moment of failure (otherwise use 1)",
+                            "process.accumulation_basis", path)
+
+    mtt = process.max_technical_temperature
+    if mtt is None:
+        raise CaseError("missing max_technical_temperature (MTT: boiling point at operating "
+                        "pressure or the temperature at the relief set pressure), e.g. "
+                        "max_technical_temperature = \"111 degC\"",
+                        "process.max_technical_temperature", path)
+    if process.temperature > mtt + 1e-9:
+        raise CaseError(
+            f"process temperature {process.temperature - 273.15:.1f} degC is above the MTT "
+            f"{mtt - 273.15:.1f} degC, impossible at the stated pressure (a process at reflux "
+            f"sits at the MTT); check both values", "process.temperature", path)
+
+    decomposition = sections.get("decomposition")
+    if decomposition is None:
+        raise CaseError("missing section [decomposition]: without data on the secondary "
+                        "reaction no class can be assigned; give at least energy and "
+                        "onset_temperature, better energy, model and kinetics",
+                        "decomposition", path)
+    _check_decomposition(decomposition, path)
+
+    for vessel, index in zip(vessels, range(1, len(vessels) + 1)):
+        prefix = f"vessel.{index}" if len(vessels) > 1 else "vessel"
+        if vessel.heat_transfer_coefficient is None:
+            raise CaseError("missing heat_transfer_coefficient (overall U), e.g. \"250 W/(m^2 K)\"",
+                            f"{prefix}.heat_transfer_coefficient", path)
+        if vessel.coolant_temperature is None:
+            raise CaseError("missing coolant_temperature, e.g. \"20 degC\"",
+                            f"{prefix}.coolant_temperature", path)
+        has_geometry = vessel.volume is not None or vessel.diameter is not None
+        if vessel.heat_transfer_area is None and not has_geometry:
+            raise CaseError("give heat_transfer_area, or volume, diameter and bottom so that the "
+                            "wetted area can be computed", f"{prefix}.heat_transfer_area", path)
+        if vessel.heat_transfer_area is None:
+            for needed in ("volume", "diameter", "bottom"):
+                if vessel.get(needed) is None:
+                    raise CaseError(f"computing the wetted area needs {needed} as well",
+                                    f"{prefix}.{needed}", path)
+            if sections["mass"].density is None:
+                raise CaseError("computing the fill of a vessel needs the density of the "
+                                "reaction mass, e.g. density = \"1050 kg/m^3\"", "mass.density", path)
+        if (vessel.min_coolant_temperature is not None
+                and vessel.min_coolant_temperature > vessel.coolant_temperature):
+            raise CaseError("min_coolant_temperature is above coolant_temperature",
+                            f"{prefix}.min_coolant_temperature", path)
+        if vessel.heat_losses and vessel.ambient_temperature is None:
+            raise CaseError("heat_losses need ambient_temperature", f"{prefix}.ambient_temperature",
+                            path)
+
+
+def _check_decomposition(decomposition: Section, path: str) -> None:
+    data = decomposition.as_dict()
+    if "energy" not in data:
+        raise CaseError("missing energy (heat released by the decomposition per kg of reaction "
+                        "mass, positive, e.g. \"650 kJ/kg\")", "decomposition.energy", path)
+    model = data.get("model")
+    kinetic_keys = ("activation_energy", "reference_rate", "reference_temperature",
+                    "pre_exponential_factor")
+    if model is None:
+        if any(k in data for k in kinetic_keys):
+            raise CaseError("kinetic data given without model; add model = \"zero-order\", "
+                            "\"nth-order\" or \"autocatalytic\"", "decomposition.model", path)
+        if "onset_temperature" not in data:
+            raise CaseError("give kinetics (model, activation_energy, reference_rate with "
+                            "reference_temperature or pre_exponential_factor) or at least an "
+                            "onset_temperature for a crude estimate", "decomposition.model", path)
+        return
+    if "activation_energy" not in data:
+        raise CaseError("missing activation_energy, e.g. \"120 kJ/mol\"",
+                        "decomposition.activation_energy", path)
+    has_ref = "reference_rate" in data or "reference_temperature" in data
+    if has_ref and "pre_exponential_factor" in data:
+        raise CaseError("give either reference_rate with reference_temperature, or "
+                        "pre_exponential_factor, not both", "decomposition.pre_exponential_factor",
+                        path)
+    if has_ref:
+        for needed in ("reference_rate", "reference_temperature"):
+            if needed not in data:
+                raise CaseError(f"reference_rate and reference_temperature go together; add "
+                                f"{needed}", f"decomposition.{needed}", path)
+    elif "pre_exponential_factor" not in data:
+        raise CaseError("missing the rate: give reference_rate (W/kg of the fresh mass) with "
+                        "reference_temperature, or pre_exponential_factor (1/s)",
+                        "decomposition.reference_rate", path)
+    if model == "nth-order" and "order" not in data:
+        raise CaseError("nth-order needs order (n), e.g. order = 1", "decomposition.order", path)
+    if model == "autocatalytic":
+        for needed in ("order", "autocatalytic_order", "initial_conversion"):
+            if needed not in data:
+                raise CaseError(f"autocatalytic (f = a^m (1-a)^n) needs {needed}",
+                                f"decomposition.{needed}", path)
+    if model == "zero-order" and ("order" in data or "autocatalytic_order" in data):
+        raise CaseError("order is not used by the zero-order model; remove it or choose "
+                        "model = \"nth-order\"", "decomposition.order", path)
+    if math.isnan(data["activation_energy"]):  # pragma: no cover - parse rejects NaN already
+        raise CaseError("activation_energy is not a number", "decomposition.activation_energy", path)

@@ -1,0 +1,377 @@
+"""The screening engine: composes the physical models into one traceable result.
+
+Input: a validated :class:`screen.case.Case` (SI floats). Output: a :class:`ScreeningResult`
+whose ``results`` mapping holds JSON-ready figures in the units named by each key, plus curves
+for figures, warnings, the method behind each figure and the cautions. Nothing here reads files
+or prints.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from screen import __version__
+from screen.cautions import CAUTIONS
+from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
+from screen.errors import ModelDomainError, ScreenError, SolverError
+from screen.models import criticality as crit
+from screen.models import thermal
+
+#: Crude onset-only estimate: zero order with a low activation energy, the DSC onset read as the
+#: temperature where the heat release reaches the detection limit of a dynamic DSC run
+#: (Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41; values from memory, design).
+ONSET_ESTIMATE_ACTIVATION_ENERGY = 50e3  # J/mol
+ONSET_ESTIMATE_DETECTION_LIMIT = 10.0  # W/kg
+#: Extrapolation of decomposition kinetics below the lowest measured temperature that triggers
+#: a warning [K] (design).
+EXTRAPOLATION_WARNING_K = 50.0
+
+TOOL_NAME = "runaway-screen"
+
+
+@dataclass
+class ScreeningResult:
+    """Everything a presenter needs: figures, curves, warnings, methods, provenance."""
+
+    case: Any
+    results: dict[str, Any]
+    warnings: list[str]
+    methods: dict[str, str]
+    curves: dict[str, Any] = field(default_factory=dict)
+    cautions: tuple[str, ...] = CAUTIONS
+
+    def to_json_dict(self, generated_at: str | None = None) -> dict[str, Any]:
+        """JSON-ready dict. Only ``generated_at`` varies between identical runs."""
+        case = self.case
+        header = case.sections["case"]
+        return {
+            "tool": {"name": TOOL_NAME, "version": __version__},
+            "case": {
+                "title": header.title,
+                "revision": header.revision,
+                "author": header.author,
+                "path": case.path,
+                "sha256": case.sha256,
+            },
+            "generated_at": generated_at,
+            "overrides": list(case.overrides),
+            "inputs": [
+                {"key": rec.key, "as_read": rec.text, "value_si": _json_value(rec.value),
+                 "unit_si": rec.unit}
+                for rec in case.inputs
+            ],
+            "results": _json_clean(self.results),
+            "methods": dict(self.methods),
+            "warnings": list(self.warnings),
+            "cautions": list(self.cautions),
+        }
+
+
+def _json_value(value):
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    return value
+
+
+def _json_clean(obj):
+    """Round floats to 10 significant digits (stable across platforms) and map non-finite to None."""
+    if isinstance(obj, dict):
+        return {k: _json_clean(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_json_clean(v) for v in obj]
+    if isinstance(obj, (np.bool_,)):
+        return bool(obj)
+    if isinstance(obj, (np.integer,)):
+        return int(obj)
+    if isinstance(obj, (float, np.floating)):
+        value = float(obj)
+        if not math.isfinite(value):
+            return None
+        return float(f"{value:.10g}")
+    return obj
+
+
+def to_celsius(kelvin):
+    return None if kelvin is None else float(kelvin) - ZERO_CELSIUS
+
+
+def to_hours(seconds):
+    return None if seconds is None else float(seconds) / SECONDS_PER_HOUR
+
+
+# --------------------------------------------------------------------------------------------
+
+
+def decomposition_kinetics(case):
+    """Build the decomposition kinetics object from the case (SI).
+
+    Returns (kinetics, basis) where basis is ``"kinetics"`` or ``"onset-estimate"``.
+    """
+    from screen.models.decomposition import DecompositionKinetics
+
+    dec = case.sections["decomposition"]
+    if dec.model is None:
+        kinetics = DecompositionKinetics.from_reference_rate(
+            "zero-order", dec.energy, ONSET_ESTIMATE_ACTIVATION_ENERGY,
+            ONSET_ESTIMATE_DETECTION_LIMIT, dec.onset_temperature)
+        return kinetics, "onset-estimate"
+    common = dict(order=dec.get("order", 1.0 if dec.model == "nth-order" else 0.0),
+                  autocatalytic_order=dec.get("autocatalytic_order", 0.0),
+                  initial_conversion=dec.get("initial_conversion", 0.0))
+    if dec.model == "zero-order":
+        common["order"] = 0.0
+    if dec.reference_rate is not None:
+        kinetics = DecompositionKinetics.from_reference_rate(
+            dec.model, dec.energy, dec.activation_energy, dec.reference_rate,
+            dec.reference_temperature, **common)
+    else:
+        kinetics = DecompositionKinetics(
+            model=dec.model, energy=dec.energy, activation_energy=dec.activation_energy,
+            pre_exponential_factor=dec.pre_exponential_factor, **common)
+    return kinetics, "kinetics"
+
+
+def synthesis_specific_energy(case) -> float:
+    """Heat of the desired reaction per kg of final mass [J/kg]."""
+    syn = case.sections["synthesis"]
+    if syn.energy is not None:
+        return float(syn.energy)
+    return float(thermal.specific_energy_from_molar(syn.molar_enthalpy, syn.limiting_amount,
+                                                    case.sections["mass"].amount))
+
+
+def _plausibility_warnings(case, synthesis_rise, decomposition_rise, warnings):
+    cp = case.sections["mass"].specific_heat
+    if not 800.0 <= cp <= 5000.0:
+        warnings.append(f"mass.specific_heat = {cp / 1000:.3g} kJ/(kg K) is outside the usual "
+                        f"0.8-5 kJ/(kg K) of liquid reaction masses: check the value and unit.")
+    dec = case.sections["decomposition"]
+    if dec.activation_energy is not None and not 30e3 <= dec.activation_energy <= 400e3:
+        warnings.append(f"decomposition.activation_energy = {dec.activation_energy / 1000:.4g} "
+                        f"kJ/mol is outside the usual 30-400 kJ/mol: check the value and unit.")
+    syn = case.sections["synthesis"]
+    if syn.activation_energy is not None and not 30e3 <= syn.activation_energy <= 400e3:
+        warnings.append(f"synthesis.activation_energy = {syn.activation_energy / 1000:.4g} kJ/mol "
+                        f"is outside the usual 30-400 kJ/mol: check the value and unit.")
+    for name, rise in (("synthesis", synthesis_rise), ("decomposition", decomposition_rise)):
+        if rise > 1000.0:
+            warnings.append(f"{name} adiabatic rise {rise:.0f} K exceeds 1000 K: implausible for "
+                            f"a liquid mass; check the energy, mass and c'p.")
+
+
+def screen_case(case) -> ScreeningResult:
+    """Run the screening of one case.
+
+    Parameters
+    ----------
+    case : screen.case.Case
+        A validated case (SI values).
+
+    Returns
+    -------
+    ScreeningResult
+        ``results`` holds the figures named in the JSON contract (degC, K, h).
+
+    Raises
+    ------
+    ScreenError
+        A model was outside its domain or a numerical method failed; the message says which.
+    """
+    from screen.models import decomposition as dm
+
+    warnings: list[str] = list(case.warnings)
+    methods: dict[str, str] = {}
+    process = case.sections["process"]
+    mass = case.sections["mass"]
+    dec = case.sections["decomposition"]
+    cp = float(mass.specific_heat)
+    t_p = float(process.temperature)
+    mtt = float(process.max_technical_temperature)
+
+    # Synthesis: adiabatic rise and MTSR.
+    q_syn = synthesis_specific_energy(case)
+    rise_syn = float(thermal.adiabatic_temperature_rise(q_syn, cp))
+    if process.mode == "semi-batch":
+        accumulation = float(process.accumulation)
+        mass_ratio = float(process.get("accumulation_mass_ratio", 1.0))
+    else:
+        accumulation = float(process.get("accumulation", 1.0))
+        mass_ratio = 1.0
+    mtsr = float(thermal.maximum_temperature_synthesis_reaction(t_p, rise_syn, accumulation,
+                                                                 mass_ratio))
+    methods["mtsr"] = ("MTSR = T_p + X_ac dT_ad / (m(t_acc)/m_final) (Stoessel, Chem. Eng. Prog. "
+                       "89(10) 1993; mass correction derived)")
+
+    # Decomposition.
+    try:
+        kinetics, basis = decomposition_kinetics(case)
+        dm.validate_kinetics(kinetics)
+    except ModelDomainError as exc:
+        raise ModelDomainError(exc.message, exc.key or "decomposition", case.path) from None
+    rise_dec = float(thermal.adiabatic_temperature_rise(dec.energy, cp))
+    final_temperature = mtsr + rise_dec
+    _plausibility_warnings(case, rise_syn, rise_dec, warnings)
+
+    try:
+        tmrad_tp = float(dm.tmrad(kinetics, t_p, cp))
+        tmrad_mtsr = float(dm.tmrad(kinetics, mtsr, cp))
+        tmrad_mtsr_zero = float(dm.tmrad_townsend_tou_for(kinetics, mtsr, cp))
+        td24 = float(dm.td24(kinetics, cp))
+        td8 = float(dm.td8(kinetics, cp))
+    except ScreenError as exc:
+        raise type(exc)(exc.message, exc.key or "decomposition", case.path) from None
+    for name, value in (("TMRad at T_p", tmrad_tp), ("TMRad at MTSR", tmrad_mtsr),
+                        ("TD24", td24), ("TD8", td8)):
+        if not math.isfinite(value):
+            raise SolverError(f"{name} is not a finite number for these kinetics; check the "
+                              f"decomposition data", "decomposition", case.path)
+
+    model_name = kinetics.model
+    if model_name == "zero-order":
+        methods["tmrad"] = ("Zero order: TMRad = c'p R T0^2 / (q(T0) E) (Townsend & Tou, "
+                            "Thermochim. Acta 37 (1980) 1-30)")
+    else:
+        methods["tmrad"] = (f"{model_name}: adiabatic time to maximum rate with reactant "
+                            f"consumption, integrated numerically (phi = 1); zero-order "
+                            f"Townsend & Tou (1980) value shown for comparison")
+    methods["td24"] = "Start temperature at which TMRad = 24 h (TD8: 8 h), same model, root finding"
+    methods["criticality_class"] = "Criticality classes (Stoessel, Chem. Eng. Prog. 89(10) 1993)"
+    methods["severity"] = ("Severity from the runaway's adiabatic rise (final temperature - T_p); "
+                           "probability from TMRad at MTSR (Stoessel 2008 ch. 3; bands from memory)")
+
+    conservative, reasons = dm.zero_order_is_conservative(kinetics, mtsr, cp)
+    if model_name != "zero-order" and not bool(np.all(conservative)):
+        reason = reasons if isinstance(reasons, str) else "; ".join(map(str, np.atleast_1d(reasons)))
+        warnings.append(
+            f"The zero-order (Townsend & Tou) TMRad at MTSR ({to_hours(tmrad_mtsr_zero):.3g} h) is "
+            f"NOT conservative for this {model_name} decomposition ({reason}); the verdict uses "
+            f"the {model_name} value ({to_hours(tmrad_mtsr):.3g} h).")
+    if model_name == "zero-order" and basis == "kinetics":
+        b_number = float(dm.semenov_b_number(mtsr, rise_dec, kinetics.activation_energy))
+        if b_number < 10.0:
+            warnings.append(
+                f"B = E dT_ad/(R T0^2) = {b_number:.3g} at MTSR is small: reactant consumption "
+                f"matters and the zero-order TMRad is only a rough estimate.")
+
+    if basis == "onset-estimate":
+        warnings.append(
+            "Decomposition kinetics missing: TMRad and TD24 are a CRUDE estimate from the DSC "
+            f"onset alone (zero order, E = {ONSET_ESTIMATE_ACTIVATION_ENERGY / 1000:.0f} kJ/mol, "
+            f"onset read as {ONSET_ESTIMATE_DETECTION_LIMIT:g} W/kg; Keller et al. 1997, "
+            f"from memory). Measure the decomposition kinetics before relying on the class.")
+        methods["tmrad"] = ("Crude estimate from the DSC onset (zero order, low activation "
+                            "energy, onset as detection limit; Keller et al., J. Loss Prev. "
+                            "Process Ind. 10 (1997) 31-41, from memory)")
+
+    lowest_measured = dec.lowest_measured_temperature or dec.reference_temperature
+    if basis == "kinetics" and lowest_measured is not None:
+        gap = lowest_measured - td24
+        if gap > EXTRAPOLATION_WARNING_K:
+            warnings.append(
+                f"TD24 ({to_celsius(td24):.1f} degC) lies {gap:.0f} K below the lowest temperature "
+                f"at which the decomposition was measured ({to_celsius(lowest_measured):.1f} degC): "
+                f"the kinetics are extrapolated far outside the measured range.")
+
+    klass = crit.criticality_class(t_p, mtsr, mtt, td24)
+    if td24 <= t_p:
+        warnings.append(f"TD24 ({to_celsius(td24):.1f} degC) is at or below the process "
+                        f"temperature ({to_celsius(t_p):.1f} degC): outside the class scheme; "
+                        f"reported as class 5, the most critical outcome. The mass is not stable "
+                        f"for 24 h even under normal conditions.")
+    if mtsr > mtt and process.mode == "batch" and accumulation >= 1.0:
+        pass  # normal class 3/4/5 logic covers it
+    runaway_rise = final_temperature - t_p
+    severity_4 = crit.severity_level(runaway_rise, 4)
+    severity_3 = crit.severity_level(runaway_rise, 3)
+    tmr_h = to_hours(tmrad_mtsr)
+    probability_6 = crit.probability_level(tmr_h, 6)
+    probability_3 = crit.probability_level(tmr_h, 3)
+
+    if basis == "onset-estimate":
+        verdict_status = "crude-estimate"
+    else:
+        verdict_status = "screened"
+    verdict = _verdict_text(klass, severity_4, probability_6, verdict_status)
+
+    results: dict[str, Any] = {
+        "process_temperature_degC": to_celsius(t_p),
+        "mode": process.mode,
+        "accumulation": accumulation,
+        "accumulation_mass_ratio": mass_ratio,
+        "synthesis_energy_kJ_per_kg": q_syn / 1000.0,
+        "synthesis_adiabatic_rise_K": rise_syn,
+        "mtsr_degC": to_celsius(mtsr),
+        "mtt_degC": to_celsius(mtt),
+        "decomposition_energy_kJ_per_kg": dec.energy / 1000.0,
+        "decomposition_adiabatic_rise_K": rise_dec,
+        "final_temperature_degC": to_celsius(final_temperature),
+        "runaway_adiabatic_rise_K": runaway_rise,
+        "decomposition_model": model_name,
+        "decomposition_basis": basis,
+        "tmrad_at_process_temperature_h": to_hours(tmrad_tp),
+        "tmrad_at_mtsr_h": tmr_h,
+        "tmrad_at_mtsr_zero_order_h": to_hours(tmrad_mtsr_zero),
+        "td24_degC": to_celsius(td24),
+        "td8_degC": to_celsius(td8),
+        "onset_margin_K": td24 - mtsr,
+        "criticality_class": int(klass),
+        "criticality_meaning": crit.CLASS_MEANINGS[int(klass)],
+        "severity": severity_3,
+        "severity_4": severity_4,
+        "probability": probability_3,
+        "probability_6": probability_6,
+        "verdict_status": verdict_status,
+        "verdict": verdict,
+    }
+    if dec.onset_temperature is not None:
+        onset = float(dec.onset_temperature)
+        results["dsc_onset_degC"] = to_celsius(onset)
+        results["dsc_onset_minus_process_temperature_K"] = onset - t_p
+        results["dsc_onset_minus_mtsr_K"] = onset - mtsr
+        results["dsc_onset_note"] = (
+            "For information only: the '100 K below the DSC onset' margin is a rule of thumb with "
+            "no published basis (common practice, no source) and is not used for the verdict.")
+
+    curves = {
+        "temperatures_K": {"T_p": t_p, "MTSR": mtsr, "MTT": mtt, "TD24": td24, "TD8": td8,
+                           "final": final_temperature},
+        "kinetics": kinetics,
+        "specific_heat": cp,
+    }
+    low = min(t_p, td24) - 30.0
+    high = max(final_temperature, td8, mtsr) + 30.0
+    grid = np.linspace(max(low, 150.0), high, 160)
+    with np.errstate(all="ignore"):
+        tmr_grid = np.asarray(dm.tmrad(kinetics, grid, cp), dtype=float)
+    curves["tmrad_curve"] = (grid, tmr_grid)
+
+    result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
+                             curves=curves)
+    _add_vessels(case, result, kinetics, mtsr)
+    return result
+
+
+def _verdict_text(klass, severity_4, probability_6, status):
+    text = (f"Criticality class {klass}: {crit.CLASS_MEANINGS[klass]} Severity {severity_4}, "
+            f"probability {probability_6}.")
+    if status == "crude-estimate":
+        text = ("CANNOT CONCLUDE ON A LOW CLASS - decomposition kinetics missing; the figures "
+                "rest on a crude onset estimate. " + text)
+    return text
+
+
+def _add_vessels(case, result: ScreeningResult, kinetics, mtsr) -> None:
+    """Vessel heat balance (Semenov) results, one entry per vessel."""
+    if not case.vessels:
+        result.results["vessels"] = []
+        return
+    from screen.vessels import vessel_results
+
+    entries, curves, warnings = vessel_results(case, kinetics, mtsr)
+    result.results["vessels"] = entries
+    result.curves["vessels"] = curves
+    result.warnings.extend(warnings)

@@ -1,0 +1,174 @@
+"""Criticality classes of a cooling-failure scenario, and severity and probability levels.
+
+The criticality classes compare four temperatures: the process temperature T_p, the maximum
+temperature of the synthesis reaction MTSR, the maximum technical temperature MTT (boiling point
+or relief temperature) and TD24 (the start temperature at which the decomposition's TMRad is
+24 h). Reference: F. Stoessel, "What is your thermal risk?", Chem. Eng. Prog. 89(10) (1993)
+68-75; F. Stoessel, Thermal Safety of Chemical Processes, Wiley-VCH 2008, ch. 3. The ordering of
+the classes below is from memory and internally consistent:
+
+====== ===================================== ============================================
+class  ordering                              meaning
+====== ===================================== ============================================
+1      MTSR < MTT < TD24                     no runaway; MTT is a second barrier
+2      MTSR < TD24 < MTT                     no runaway unless the mass is held long at MTT
+3      MTT < MTSR < TD24                     boiling is the barrier; decomposition not reached
+4      MTT < TD24 < MTSR                     boiling is the barrier before the decomposition
+5      TD24 < MTSR, TD24 < MTT               decomposition triggered; boiling is no barrier
+====== ===================================== ============================================
+
+Ties are not covered by the published strict inequalities; they are resolved to the more
+critical class (design). TD24 at or below T_p is outside the scheme and reported as class 5, the
+most critical outcome (design).
+
+Severity and probability levels (bands from memory, same source): severity from the adiabatic
+rise of the runaway (final temperature minus T_p), probability from TMRad at MTSR. A value on a
+band limit goes to the more severe level (design).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+CLASS_MEANINGS = {
+    1: "No runaway expected: the synthesis cannot reach the decomposition range, and boiling "
+       "(MTT) would act as a further barrier.",
+    2: "No runaway from the synthesis alone, but the mass must not be held near the MTT for long: "
+       "TD24 lies below the MTT.",
+    3: "The synthesis runaway reaches the MTT; evaporative cooling (or pressure relief) is the "
+       "barrier that must be designed and checked. The decomposition is not reached.",
+    4: "The synthesis runaway would reach the decomposition range; the barrier at the MTT "
+       "(evaporative cooling or relief) must hold, so it must be designed and checked.",
+    5: "A cooling failure triggers the decomposition before the MTT can act: no technical barrier "
+       "from boiling. Redesign the process or provide qualified emergency measures.",
+}
+
+SEVERITY_4_LEVELS = ("negligible", "medium", "critical", "catastrophic")
+SEVERITY_3_LEVELS = ("low", "medium", "high")
+PROBABILITY_6_LEVELS = ("frequent", "probable", "occasional", "seldom", "remote",
+                        "almost impossible")
+PROBABILITY_3_LEVELS = ("high", "medium", "low")
+
+
+def criticality_class(process_temperature, mtsr, mtt, td24):
+    """Criticality class 1..5 of a cooling-failure scenario (vectorised).
+
+    Parameters
+    ----------
+    process_temperature : float or array
+        Process temperature T_p. [K]
+    mtsr : float or array
+        Maximum temperature of the synthesis reaction. [K]
+    mtt : float or array
+        Maximum technical temperature (boiling point or relief temperature). [K]
+    td24 : float or array
+        Temperature at which TMRad of the decomposition is 24 h. [K]
+
+    Returns
+    -------
+    int or ndarray of int
+        Class 1..5 (Stoessel 1993). Ties go to the more critical class; TD24 <= T_p gives 5.
+
+    Examples
+    --------
+    >>> criticality_class(350.0, 380.0, 400.0, 420.0)
+    1
+    >>> criticality_class(350.0, 420.0, 400.0, 410.0)
+    4
+    """
+    tp, ms, mt, td = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in
+                                           (process_temperature, mtsr, mtt, td24)))
+    decomposition_reached = ms >= td
+    boiling_reached = ms >= mt
+    result = np.where(
+        decomposition_reached,
+        np.where(mt < td, 4, 5),
+        np.where(boiling_reached, 3, np.where(mt < td, 1, 2)),
+    )
+    result = np.where(td <= tp, 5, result)
+    if result.ndim == 0:
+        return int(result)
+    return result.astype(int)
+
+
+def severity_level(adiabatic_rise, levels: int = 4):
+    """Severity from the adiabatic temperature rise of the runaway (final temperature - T_p).
+
+    Parameters
+    ----------
+    adiabatic_rise : float
+        Final temperature minus process temperature. [K]
+    levels : {3, 4}
+        Four levels: >= 400 K catastrophic, >= 200 K critical, >= 50 K medium, else negligible.
+        Three levels: >= 200 K high, >= 50 K medium, else low. (Stoessel 2008 ch. 3; bands from
+        memory; a value on a limit goes to the more severe level, design.)
+
+    Returns
+    -------
+    str
+    """
+    rise = float(adiabatic_rise)
+    if not np.isfinite(rise):
+        raise ValueError("adiabatic rise must be finite")
+    if levels == 4:
+        if rise >= 400.0:
+            return "catastrophic"
+        if rise >= 200.0:
+            return "critical"
+        if rise >= 50.0:
+            return "medium"
+        return "negligible"
+    if levels == 3:
+        if rise >= 200.0:
+            return "high"
+        if rise >= 50.0:
+            return "medium"
+        return "low"
+    raise ValueError("levels must be 3 or 4")
+
+
+def probability_level(tmrad_hours, levels: int = 6):
+    """Probability of a runaway from TMRad at MTSR.
+
+    Parameters
+    ----------
+    tmrad_hours : float
+        TMRad of the decomposition started at MTSR. [h]
+    levels : {3, 6}
+        Six levels: <= 1 h frequent, <= 8 h probable, <= 24 h occasional, <= 50 h seldom,
+        <= 100 h remote, else almost impossible. Three levels: <= 8 h high, <= 24 h medium,
+        else low. (Stoessel 2008 ch. 3; bands from memory; a value on a limit goes to the more
+        severe level, design.)
+
+    Returns
+    -------
+    str
+    """
+    tmr = float(tmrad_hours)
+    if np.isnan(tmr) or tmr < 0:
+        raise ValueError("TMRad must be a non-negative number")
+    if levels == 6:
+        for limit, name in ((1.0, "frequent"), (8.0, "probable"), (24.0, "occasional"),
+                            (50.0, "seldom"), (100.0, "remote")):
+            if tmr <= limit:
+                return name
+        return "almost impossible"
+    if levels == 3:
+        if tmr <= 8.0:
+            return "high"
+        if tmr <= 24.0:
+            return "medium"
+        return "low"
+    raise ValueError("levels must be 3 or 6")
+
+
+def severity_codes(adiabatic_rise):
+    """Vectorised 4-level severity as integer codes 0..3 (index into SEVERITY_4_LEVELS)."""
+    rise = np.asarray(adiabatic_rise, dtype=float)
+    return np.searchsorted(np.array([50.0, 200.0, 400.0]), rise, side="right")
+
+
+def probability_codes(tmrad_hours):
+    """Vectorised 6-level probability as integer codes 0..5 (index into PROBABILITY_6_LEVELS)."""
+    tmr = np.asarray(tmrad_hours, dtype=float)
+    return np.searchsorted(np.array([1.0, 8.0, 24.0, 50.0, 100.0]), tmr, side="left")

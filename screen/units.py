@@ -1,0 +1,253 @@
+"""The one pint registry and the parser that turns ``"250 kJ/kg"`` into an SI float.
+
+Rules (why): every dimensional value in a case file is a quoted string with its unit, converted
+to SI once, here. Offset temperatures are only accepted where an absolute temperature is meant:
+a rise of ``"50 degC"`` would otherwise silently become 323.15 K. Decimal commas are rejected
+because pint reads ``"1,5 kJ"`` as 15 kJ. A standard uncertainty may be written inside the
+quantity (``"100 ± 8 kJ/mol"`` or ``"100 +/- 8 kJ/mol"``); it is returned separately in SI.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+from screen.errors import UnitError
+
+#: Kinds of quantity a case-file field can hold: name -> (pint dimensionality, SI unit string).
+DIMENSIONS: dict[str, tuple[str, str]] = {
+    "temperature": ("[temperature]", "K"),
+    "temperature_difference": ("[temperature]", "K"),
+    "mass": ("[mass]", "kg"),
+    "specific_heat": ("[energy]/[mass]/[temperature]", "J/(kg*K)"),
+    "specific_energy": ("[energy]/[mass]", "J/kg"),
+    "molar_energy": ("[energy]/[substance]", "J/mol"),
+    "amount_of_substance": ("[substance]", "mol"),
+    "specific_power": ("[power]/[mass]", "W/kg"),
+    "frequency": ("1/[time]", "1/s"),
+    "time": ("[time]", "s"),
+    "area": ("[area]", "m^2"),
+    "volume": ("[volume]", "m^3"),
+    "length": ("[length]", "m"),
+    "density": ("[mass]/[volume]", "kg/m^3"),
+    "heat_transfer_coefficient": ("[power]/[area]/[temperature]", "W/(m^2*K)"),
+    "thermal_conductance": ("[power]/[temperature]", "W/K"),
+    "power": ("[power]", "W"),
+    "pressure": ("[pressure]", "Pa"),
+    "specific_amount": ("[substance]/[mass]", "mol/kg"),
+    "velocity": ("[length]/[time]", "m/s"),
+    "mass_flow": ("[mass]/[time]", "kg/s"),
+    "second_order_rate_constant": ("[volume]/[substance]/[time]", "m^3/(mol*s)"),
+}
+
+#: Example strings used in error messages, one per kind.
+EXAMPLES: dict[str, str] = {
+    "temperature": '"85 degC" or "358.15 K"',
+    "temperature_difference": '"60 K" (a difference: write it in K, not degC)',
+    "mass": '"4500 kg"',
+    "specific_heat": '"1.9 kJ/(kg K)"',
+    "specific_energy": '"250 kJ/kg"',
+    "molar_energy": '"-120 kJ/mol" or "95 kJ/mol"',
+    "amount_of_substance": '"2400 mol" or "2.4 kmol"',
+    "specific_power": '"12 W/kg"',
+    "frequency": '"3.2e12 1/s"',
+    "time": '"4 h" or "90 min"',
+    "area": '"6.2 m^2"',
+    "volume": '"6.3 m^3"',
+    "length": '"1.8 m"',
+    "density": '"1050 kg/m^3"',
+    "heat_transfer_coefficient": '"300 W/(m^2 K)"',
+    "thermal_conductance": '"25 W/K"',
+    "power": '"150 kW"',
+    "pressure": '"2.5 bar" (absolute)',
+    "specific_amount": '"1.5 mol/kg"',
+    "velocity": '"8 m/s"',
+    "mass_flow": '"0.2 kg/s"',
+    "second_order_rate_constant": '"1.2e-6 m^3/(mol s)"',
+}
+
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_QUANTITY_RE = re.compile(
+    rf"^\s*(?P<value>{_NUMBER})\s*(?:(?:±|\+/-|\+-)\s*(?P<std>{_NUMBER}))?\s*(?P<unit>.*?)\s*$"
+)
+_OFFSET_UNITS = {"degc", "°c", "celsius", "degree_celsius", "degf", "°f", "fahrenheit",
+                 "degree_fahrenheit", "degreec", "deg_c", "℃"}
+_GAUGE_RE = re.compile(r"(barg|psig|kpag|mpag)\b", re.IGNORECASE)
+
+
+@dataclass(frozen=True)
+class ParsedQuantity:
+    """A value converted to SI, with its optional standard uncertainty (also SI)."""
+
+    value: float
+    std: float | None
+    text: str
+    si_unit: str
+
+
+@lru_cache(maxsize=1)
+def registry():
+    """The project's single pint UnitRegistry (created on first use; pint is slow to import)."""
+    import pint
+
+    ureg = pint.UnitRegistry()
+    return ureg
+
+
+def _normalise_unit(unit: str) -> str:
+    """Rewrite common spellings pint does not read: m2 -> m^2, °C -> degC, W/m2K."""
+    text = unit.strip()
+    text = text.replace("℃", "degC").replace("°C", "degC").replace("°F", "degF")
+    text = text.replace("°", "deg").replace("·", "*").replace("×", "*").replace("²", "^2")
+    text = text.replace("³", "^3").replace("−", "-")
+    # A trailing digit after letters is a power ("m2" -> "m^2"); leave "1/s" and "e-3" alone.
+    text = re.sub(r"(?<=[A-Za-z])(\d)", r"^\1", text)
+    if text == "%":
+        return "percent"
+    return text
+
+
+def _is_offset_temperature(unit: str) -> bool:
+    return unit.strip().lower() in _OFFSET_UNITS
+
+
+def parse_quantity(raw, kind: str, key: str, path: str | None = None) -> ParsedQuantity:
+    """Parse a case-file quantity string into SI.
+
+    Parameters
+    ----------
+    raw : str
+        The value as written, e.g. ``"250 kJ/kg"`` or ``"100 ± 8 kJ/mol"``.
+    kind : str
+        One of :data:`DIMENSIONS`; ``"temperature"`` is absolute (degC, degF, K, degR accepted),
+        ``"temperature_difference"`` accepts only K or delta units.
+    key, path : str
+        Key path and file, for the error message.
+
+    Returns
+    -------
+    ParsedQuantity
+        Value and standard uncertainty in the SI unit of ``kind``.
+
+    Raises
+    ------
+    UnitError
+        Not a string, decimal comma, no unit, unknown unit, wrong dimension, non-finite value,
+        offset unit where a difference is expected.
+    """
+    expected_dim, si_unit = DIMENSIONS[kind]
+    example = EXAMPLES[kind]
+    if isinstance(raw, bool) or not isinstance(raw, (str, int, float)):
+        raise UnitError(f"got {raw!r}; expected a quoted value with unit, e.g. {example}", key, path)
+    if isinstance(raw, (int, float)):
+        raise UnitError(
+            f"got the bare number {raw!r}; a dimensional value needs its unit as a quoted string, "
+            f"e.g. {example}", key, path)
+    text = raw.strip()
+    if re.search(r"\d,\d", text):
+        raise UnitError(f"got {raw!r}; decimal commas are not accepted (pint would read '1,5' as 15): "
+                        f"write a decimal point, e.g. {example}", key, path)
+    if re.search(r"\b(nan|inf|infinity)\b", text, re.IGNORECASE):
+        raise UnitError(f"got {raw!r}; the value must be a finite number, e.g. {example}", key, path)
+    match = _QUANTITY_RE.match(text)
+    if not match:
+        raise UnitError(f"got {raw!r}; expected a number followed by a unit, e.g. {example}", key, path)
+    value = float(match["value"])
+    std = float(match["std"]) if match["std"] is not None else None
+    unit_text = match["unit"]
+    if not math.isfinite(value) or (std is not None and not math.isfinite(std)):
+        raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+    if std is not None and std < 0:
+        raise UnitError(f"got {raw!r}; an uncertainty after ± must be positive", key, path)
+    if not unit_text:
+        raise UnitError(f"got {raw!r} without a unit; write e.g. {example}", key, path)
+    if _GAUGE_RE.search(unit_text):
+        raise UnitError(f"got {raw!r}; gauge pressure units are ambiguous here: give the absolute "
+                        f"pressure, e.g. \"3.5 bar\"", key, path)
+    unit_text = _normalise_unit(unit_text)
+    ureg = registry()
+    try:
+        unit = ureg.Unit(unit_text)
+    except Exception:  # pint raises many types (UndefinedUnitError, AttributeError, TokenError...)
+        raise UnitError(f"got {raw!r}; the unit {match['unit']!r} is not known; write e.g. {example}",
+                        key, path) from None
+    try:
+        dims_ok = unit.dimensionality == ureg.get_dimensionality(expected_dim)
+    except Exception:
+        dims_ok = False
+    if not dims_ok:
+        raise UnitError(f"got {raw!r}, which is not a {kind.replace('_', ' ')}; write e.g. {example}",
+                        key, path)
+    offset = _is_offset_temperature(unit_text)
+    try:
+        if kind == "temperature_difference":
+            if offset:
+                raise UnitError(
+                    f"got {raw!r}; this is a temperature difference, and degC/degF are absolute "
+                    f"temperatures here: write the difference in K, e.g. \"60 K\"", key, path)
+            q_value = ureg.Quantity(value, unit).to(si_unit).magnitude
+            q_std = None if std is None else ureg.Quantity(std, unit).to(si_unit).magnitude
+        elif kind == "temperature":
+            q_value = ureg.Quantity(value, unit).to("K").magnitude
+            # An uncertainty is a difference: convert it by the scale of the unit only.
+            if std is None:
+                q_std = None
+            else:
+                scale = (ureg.Quantity(1.0, unit).to("K").magnitude
+                         - ureg.Quantity(0.0, unit).to("K").magnitude)
+                q_std = std * scale
+        else:
+            q_value = ureg.Quantity(value, unit).to(si_unit).magnitude
+            q_std = None if std is None else ureg.Quantity(std, unit).to(si_unit).magnitude
+    except UnitError:
+        raise
+    except Exception:
+        raise UnitError(f"got {raw!r}; cannot convert it to {si_unit}; write e.g. {example}",
+                        key, path) from None
+    q_value = float(q_value)
+    if not math.isfinite(q_value):
+        raise UnitError(f"got {raw!r}; the value is not finite after conversion to {si_unit}", key, path)
+    if kind == "temperature" and q_value <= 0.0:
+        raise UnitError(f"got {raw!r} = {q_value:.6g} K; an absolute temperature must be above 0 K",
+                        key, path)
+    return ParsedQuantity(q_value, None if q_std is None else float(q_std), raw, si_unit)
+
+
+def parse_dimensionless(raw, key: str, path: str | None = None) -> ParsedQuantity:
+    """Parse a dimensionless value: a bare number, ``"0.35"``, ``"35 %"`` or ``"0.35 ± 0.05"``.
+
+    Raises
+    ------
+    UnitError
+        Booleans, non-numbers, non-finite values, or a string with a dimensional unit.
+    """
+    if isinstance(raw, bool):
+        raise UnitError(f"got {raw!r}; expected a number such as 0.35", key, path)
+    if isinstance(raw, (int, float)):
+        if not math.isfinite(float(raw)):
+            raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+        return ParsedQuantity(float(raw), None, str(raw), "1")
+    if not isinstance(raw, str):
+        raise UnitError(f"got {raw!r}; expected a number such as 0.35", key, path)
+    text = raw.strip()
+    if re.search(r"\d,\d", text):
+        raise UnitError(f"got {raw!r}; decimal commas are not accepted: write a decimal point",
+                        key, path)
+    if re.search(r"\b(nan|inf|infinity)\b", text, re.IGNORECASE):
+        raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+    match = _QUANTITY_RE.match(text)
+    if not match:
+        raise UnitError(f"got {raw!r}; expected a number such as 0.35 or \"35 %\"", key, path)
+    value = float(match["value"])
+    std = float(match["std"]) if match["std"] is not None else None
+    unit = match["unit"].strip()
+    if unit in ("%", "percent"):
+        value, std = value / 100.0, (None if std is None else std / 100.0)
+    elif unit:
+        raise UnitError(f"got {raw!r}; this value is dimensionless: write a plain number or a "
+                        f"percentage such as \"35 %\"", key, path)
+    if not math.isfinite(value) or (std is not None and (not math.isfinite(std) or std < 0)):
+        raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+    return ParsedQuantity(value, std, raw, "1")
