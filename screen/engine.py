@@ -163,13 +163,15 @@ def _plausibility_warnings(case, synthesis_rise, decomposition_rise, warnings):
                             f"a liquid mass; check the energy, mass and c'p.")
 
 
-def screen_case(case) -> ScreeningResult:
+def screen_case(case, curves: bool = True) -> ScreeningResult:
     """Run the screening of one case.
 
     Parameters
     ----------
     case : screen.case.Case
         A validated case (SI values).
+    curves : bool
+        Also compute the curves for figures (off for sweeps and Monte Carlo).
 
     Returns
     -------
@@ -336,21 +338,22 @@ def screen_case(case) -> ScreeningResult:
             "For information only: the '100 K below the DSC onset' margin is a rule of thumb with "
             "no published basis (common practice, no source) and is not used for the verdict.")
 
-    curves = {
+    curve_data = {
         "temperatures_K": {"T_p": t_p, "MTSR": mtsr, "MTT": mtt, "TD24": td24, "TD8": td8,
                            "final": final_temperature},
         "kinetics": kinetics,
         "specific_heat": cp,
     }
-    low = min(t_p, td24) - 30.0
-    high = max(final_temperature, td8, mtsr) + 30.0
-    grid = np.linspace(max(low, 150.0), high, 160)
-    with np.errstate(all="ignore"):
-        tmr_grid = np.asarray(dm.tmrad(kinetics, grid, cp), dtype=float)
-    curves["tmrad_curve"] = (grid, tmr_grid)
+    if curves:
+        low = min(t_p, td24) - 30.0
+        high = max(final_temperature, td8, mtsr) + 30.0
+        grid = np.linspace(max(low, 150.0), high, 160)
+        with np.errstate(all="ignore"):
+            tmr_grid = np.asarray(dm.tmrad(kinetics, grid, cp), dtype=float)
+        curve_data["tmrad_curve"] = (grid, tmr_grid)
 
     result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
-                             curves=curves)
+                             curves=curve_data)
     _add_vessels(case, result, kinetics, mtsr)
     return result
 

@@ -145,7 +145,7 @@ def vessel_results(case, kinetics, mtsr):
             "tangency_temperature_degC": _c(t_star),
             "critical_temperature_difference_K": t_star - t_c_crit,
             "critical_temperature_difference_linearised_K": float(
-                semenov.linearised_critical_temperature_difference(t_star, e_dec)),
+                semenov.linearised_critical_temperature_difference(t_c_crit, e_dec)),
             "stable_temperature_degC": _c(t_stable) if t_stable is not None else None,
             "no_return_temperature_degC": _c(t_nr) if t_nr is not None else None,
             "tmrad_at_no_return_h": tmr_nr,

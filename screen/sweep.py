@@ -1,0 +1,226 @@
+"""Run one case over a range of one or two inputs and locate where verdicts flip.
+
+The case is parsed once; each point replaces the varied value in SI and reruns the engine
+without figure curves, so a 200-point sweep costs little more than one ``check``. Where a
+verdict (class, vessel stability, ...) changes between neighbouring points, the flip is located
+by bisection on the input to a relative tolerance of 1e-9 of the range.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from screen.case import SCHEMA, Case, Section, _check_consistency
+from screen.errors import CaseError, ScreenError
+from screen.units import parse_dimensionless, parse_quantity
+
+#: Result keys followed along a sweep (flattened names, see screen.compare.flatten_results).
+SWEEP_FIGURES = ("mtsr_degC", "td24_degC", "tmrad_at_mtsr_h", "onset_margin_K",
+                 "final_temperature_degC", "criticality_class")
+VESSEL_FIGURES = ("critical_coolant_temperature_degC", "no_return_temperature_degC",
+                  "synthesis_cooling_ratio", "stability", "synthesis_stability")
+VERDICTS = ("criticality_class", "stability", "synthesis_stability")
+
+
+@dataclass(frozen=True)
+class Variation:
+    """One varied input: key path, SI grid and the text of the bounds."""
+
+    key: str
+    values: np.ndarray
+    unit: str
+    text: str
+    kind: str
+
+
+def parse_vary(spec: str, case: Case) -> Variation:
+    """Parse ``KEY=START:STOP:STEPS`` (e.g. ``vessel.coolant_temperature=0 degC:40 degC:41``)."""
+    if "=" not in spec:
+        raise CaseError(f"--vary {spec!r}: expected KEY=START:STOP:STEPS", key="--vary")
+    key, rng = (p.strip() for p in spec.split("=", 1))
+    parts = [p.strip() for p in rng.split(":")]
+    if len(parts) != 3:
+        raise CaseError(f"--vary {spec!r}: expected START:STOP:STEPS, e.g. "
+                        f"'vessel.coolant_temperature=0 degC:40 degC:41'", key="--vary")
+    section, field_name = _split_key(key)
+    declared = SCHEMA[section][field_name]
+    try:
+        steps = int(parts[2])
+    except ValueError:
+        raise CaseError(f"--vary {spec!r}: STEPS must be an integer", key="--vary") from None
+    if not 2 <= steps <= 5000:
+        raise CaseError(f"--vary {spec!r}: STEPS must be 2..5000", key="--vary")
+    if declared.kind == "number":
+        start = parse_dimensionless(parts[0], key).value
+        stop = parse_dimensionless(parts[1], key).value
+        unit = ""
+    elif declared.kind in ("text", "choice", "bool"):
+        raise CaseError(f"--vary {spec!r}: {key} is not numeric", key="--vary")
+    else:
+        start_q = parse_quantity(parts[0], declared.kind, key)
+        stop_q = parse_quantity(parts[1], declared.kind, key)
+        start, stop, unit = start_q.value, stop_q.value, start_q.si_unit
+    return Variation(key, np.linspace(start, stop, steps), unit, rng, declared.kind)
+
+
+def _split_key(key: str):
+    parts = key.split(".")
+    if parts[0] == "vessel" and len(parts) in (2, 3):
+        name = parts[-1]
+    elif len(parts) == 2:
+        name = parts[1]
+    else:
+        raise CaseError(f"--vary {key!r}: use SECTION.KEY, vessel.KEY or vessel.N.KEY", key="--vary")
+    if parts[0] not in SCHEMA or name not in SCHEMA[parts[0]]:
+        raise CaseError(f"--vary {key!r}: no such key in the case schema", key="--vary")
+    return parts[0], name
+
+
+def case_with_value(case: Case, key: str, value: float) -> Case:
+    """A copy of ``case`` with one value replaced (SI), cross-checked again."""
+    parts = key.split(".")
+    section = parts[0]
+    sections = dict(case.sections)
+    vessels = list(case.vessels)
+    if section == "vessel":
+        name = parts[-1]
+        indices = range(len(vessels)) if len(parts) == 2 else [int(parts[1]) - 1]
+        for i in indices:
+            values = vessels[i].as_dict()
+            values[name] = value
+            vessels[i] = Section("vessel", values, SCHEMA["vessel"])
+    else:
+        name = parts[1]
+        values = sections[section].as_dict() if section in sections else {}
+        values[name] = value
+        sections[section] = Section(section, values, SCHEMA[section])
+    spec = SCHEMA[section][name]
+    if spec.minimum is not None and (value < spec.minimum or (spec.exclusive_minimum
+                                                              and value == spec.minimum)):
+        raise CaseError(f"value {value:g} below the allowed minimum {spec.minimum:g}", key,
+                        case.path)
+    if spec.maximum is not None and value > spec.maximum:
+        raise CaseError(f"value {value:g} above the allowed maximum {spec.maximum:g}", key,
+                        case.path)
+    warnings: list[str] = []
+    _check_consistency(sections, vessels, case.path, warnings)
+    return dataclasses.replace(case, sections=sections, vessels=tuple(vessels),
+                               warnings=tuple(warnings),
+                               overrides=case.overrides + (f"{key}={value!r} (SI)",))
+
+
+def evaluate_point(case: Case, assignments) -> dict:
+    """Screen the case with ``assignments`` [(key, SI value)]; a flat row of figures.
+
+    An input error at a point (e.g. T_p above MTT) is recorded in the row, not raised.
+    """
+    from screen.engine import screen_case
+
+    row: dict = {}
+    try:
+        current = case
+        for key, value in assignments:
+            current = case_with_value(current, key, value)
+        result = screen_case(current, curves=False)
+    except ScreenError as exc:
+        row["error"] = exc.message
+        return row
+    r = result.results
+    for name in SWEEP_FIGURES:
+        row[name] = r.get(name)
+    for vessel in r.get("vessels", []):
+        for name in VESSEL_FIGURES:
+            row[f"{vessel['name']}:{name}"] = vessel.get(name)
+    row["warnings"] = len(result.warnings)
+    return row
+
+
+def _verdict_signature(row: dict):
+    if "error" in row:
+        return ("error",)
+    keys = sorted(k for k in row if k.split(":")[-1] in VERDICTS)
+    return tuple((k, row[k]) for k in keys)
+
+
+@dataclass
+class Flip:
+    """A verdict change located between two grid points by bisection."""
+
+    key: str
+    value: float
+    unit: str
+    before: dict
+    after: dict
+    fixed: tuple = ()
+
+    def changed(self) -> list[tuple[str, object, object]]:
+        names = sorted(set(self.before) | set(self.after))
+        return [(n, self.before.get(n), self.after.get(n)) for n in names
+                if self.before.get(n) != self.after.get(n)]
+
+
+def locate_flip(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80) -> tuple[float, dict, dict]:
+    """Bisection on ``key`` between ``low`` and ``high`` (whose verdicts differ)."""
+    row_low = evaluate_point(case, list(fixed) + [(key, low)])
+    row_high = evaluate_point(case, list(fixed) + [(key, high)])
+    sig_low = _verdict_signature(row_low)
+    scale = abs(high - low)
+    for _ in range(max_iter):
+        if abs(high - low) <= rel_tol * max(scale, 1e-300):
+            break
+        mid = 0.5 * (low + high)
+        row_mid = evaluate_point(case, list(fixed) + [(key, mid)])
+        if _verdict_signature(row_mid) == sig_low:
+            low, row_low = mid, row_mid
+        else:
+            high, row_high = mid, row_mid
+    return 0.5 * (low + high), dict(_verdict_signature(row_low)) if sig_low != ("error",) else {
+        "error": row_low.get("error")}, (dict(_verdict_signature(row_high))
+                                         if "error" not in row_high
+                                         else {"error": row_high.get("error")})
+
+
+def run_sweep(case: Case, variations: list[Variation]):
+    """Evaluate the grid and locate verdict flips along the first varied key.
+
+    Returns
+    -------
+    (list of dict, list of Flip)
+        Rows (one per grid point, with the varied values in SI) and the flips found.
+    """
+    if not 1 <= len(variations) <= 2:
+        raise CaseError("sweep takes one or two --vary options", key="--vary")
+    first = variations[0]
+    outer = variations[1].values if len(variations) == 2 else [None]
+    rows, flips = [], []
+    for outer_value in outer:
+        fixed = [] if outer_value is None else [(variations[1].key, float(outer_value))]
+        previous = None
+        for value in first.values:
+            row = evaluate_point(case, fixed + [(first.key, float(value))])
+            row = {first.key: float(value), **({} if outer_value is None
+                                               else {variations[1].key: float(outer_value)}),
+                   **row}
+            rows.append(row)
+            if previous is not None and _verdict_signature(previous[1]) != _verdict_signature(row):
+                at, before, after = locate_flip(case, first.key, previous[0], float(value), fixed)
+                flips.append(Flip(first.key, at, first.unit, before, after, tuple(fixed)))
+            previous = (float(value), row)
+    return rows, flips
+
+
+def to_display(value: float, unit: str, kind: str):
+    """SI value to the display unit used in tables (degC for temperatures, h for times)."""
+    if kind == "temperature":
+        return value - 273.15, "degC"
+    if kind == "time":
+        return value / 3600.0, "h"
+    return value, unit
+
+
+def finite(value) -> bool:
+    return isinstance(value, (int, float)) and math.isfinite(value)
