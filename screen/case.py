@@ -123,8 +123,77 @@ SCHEMA: dict[str, dict[str, Field]] = {
         "jacket_height": _f("length", "Height of the jacket top above the bottom", **POSITIVE),
         "heat_losses": _f("thermal_conductance", "Heat losses to ambient", minimum=0.0),
         "ambient_temperature": _f("temperature", "Ambient temperature for heat losses"),
+        "headspace_volume": _f("volume", "Gas volume above the mass (closed-vessel pressure)",
+                               **POSITIVE),
+        "relief_set_pressure": _f("pressure", "Set pressure of the relief device (absolute)",
+                                  **POSITIVE),
+        "condenser_duty": _f("power", "Condenser capacity as a duty", **POSITIVE),
+        "condenser_ua": _f("thermal_conductance", "Condenser U A", **POSITIVE),
+        "condenser_coolant_temperature": _f("temperature", "Condenser coolant temperature"),
+        "vapour_line_diameter": _f("length", "Inner diameter of the vapour line", **POSITIVE),
     },
+    "synthesis_kinetics": {
+        "scheme": _f("choice", "Rate law of the desired reaction A + B -> P",
+                     choices=("second-order", "first-order")),
+        "first_order_reagent": _f("choice", "Reagent the first-order rate depends on",
+                                  choices=("A", "B")),
+        "rate_constant": _f("rate_constant", "Rate constant k at reference_temperature "
+                            "(1/s first order; m^3/(mol s) or L/(mol s) second order)",
+                            **POSITIVE),
+        "reference_temperature": _f("temperature", "Temperature of rate_constant"),
+        "pre_exponential_factor": _f("rate_constant", "Arrhenius factor of k (instead of "
+                                     "rate_constant)", **POSITIVE),
+        "activation_energy": _f("molar_energy", "Activation energy of the desired reaction",
+                                **POSITIVE),
+        "molar_enthalpy": _f("molar_energy", "Molar reaction enthalpy (negative; default: "
+                             "synthesis.molar_enthalpy)"),
+        "initial_mass": _f("mass", "Mass charged before dosing", **POSITIVE),
+        "initial_amount_a": _f("amount_of_substance", "A charged (mol)", **POSITIVE),
+        "initial_amount_b": _f("amount_of_substance", "B charged before dosing (mol)",
+                               minimum=0.0),
+        "initial_temperature": _f("temperature", "Temperature at the start (default T_p)"),
+        "feed_amount": _f("amount_of_substance", "B dosed in total (mol; 0 or absent: batch)",
+                          minimum=0.0),
+        "feed_mass": _f("mass", "Mass of the feed", minimum=0.0),
+        "dosing_time": _f("time", "Dosing time (constant feed rate)", **POSITIVE),
+        "dosing_start": _f("time", "Start of dosing after t = 0", minimum=0.0),
+        "feed_profile": _f("text", "Piecewise feed: 'start-end h: fraction; ...' e.g. "
+                           "'0-1 h: 0.2; 1-3 h: 0.8'"),
+        "feed_temperature": _f("temperature", "Feed temperature T_D (default T_p)"),
+        "end_time": _f("time", "Simulated time of normal operation (default dosing + 2 h)",
+                       **POSITIVE),
+        "vessel": _f("text", "Name of the vessel to simulate in (default: the last vessel)"),
+        "accumulation_limit": _f("number", "Accumulation above which a warning is raised",
+                                 **FRACTION),
+    },
+    "solvent": {
+        "name": _f("text", "Solvent name or CAS number (see docs/evaporation.md for the list)"),
+        "pressure": _f("pressure", "Operating pressure (absolute) for the boiling point",
+                       **POSITIVE),
+        "amount": _f("mass", "Solvent present in the batch (for boil-dry)", minimum=0.0),
+        "latent_heat": _f("specific_energy", "Latent heat (instead of the table value)",
+                          **POSITIVE),
+        "gas_yield": _f("specific_amount", "Permanent gas from the decomposition per kg",
+                        minimum=0.0),
+    },
+    "scenarios": {
+        "double_charge": _f("bool", "Limiting reagent charged twice"),
+        "dosing_rate_factor": _f("number", "Dosing faster by this factor", minimum=1.0,
+                                 exclusive_minimum=True, maximum=1000.0),
+        "dosing_temperature": _f("temperature", "Dosing at this (lower) temperature"),
+        "agitation_loss": _f("bool", "Agitation lost during dosing: dosed feed accumulates"),
+        "coolant_temperature": _f("temperature", "Wrong coolant temperature in all vessels"),
+        "decomposition_rate_factor": _f("number", "Contamination: decomposition rate times "
+                                        "this factor", **POSITIVE),
+        "evaporation_check": _f("bool", "Check the boiling barrier in every class"),
+    },
+    # Free-form: keys are key paths of numeric inputs ("decomposition.activation_energy"),
+    # values describe a distribution; validated by screen.uncertainty.check_case.
+    "uncertainty": {},
 }
+
+#: Sections whose keys are free-form (validated by the feature module, not by SCHEMA).
+FREE_FORM_SECTIONS = ("uncertainty",)
 
 #: Sections that may appear at most once and are required.
 REQUIRED_SECTIONS = ("case", "mass", "process", "synthesis")
@@ -140,7 +209,7 @@ class Section:
 
     def __getattr__(self, key):
         declared = object.__getattribute__(self, "_declared")
-        if key in declared:
+        if key in declared or not declared:
             return object.__getattribute__(self, "_values").get(key)
         raise AttributeError(f"section [{object.__getattribute__(self, '_name')}] has no key {key!r}")
 
@@ -323,6 +392,15 @@ def _validate_value(name: str, spec: Field, raw_value, key: str, path: str,
         return raw_value
     if spec.kind == "number":
         parsed = parse_dimensionless(raw_value, key, path)
+    elif spec.kind == "rate_constant":
+        try:
+            parsed = parse_quantity(raw_value, "frequency", key, path)
+        except CaseError:
+            try:
+                parsed = parse_quantity(raw_value, "second_order_rate_constant", key, path)
+            except CaseError:
+                raise CaseError(f"got {raw_value!r}; a rate constant is in 1/s (first order) or "
+                                f"m^3/(mol s), L/(mol s) (second order)", key, path) from None
     else:
         parsed = parse_quantity(raw_value, spec.kind, key, path)
     value = parsed.value
@@ -347,6 +425,10 @@ def _validate_table(section: str, table, key_prefix: str, path: str, inputs: lis
     declared = SCHEMA[section]
     if not isinstance(table, dict):
         raise CaseError(f"expected a table [{section}], got {type(table).__name__}", key_prefix, path)
+    if section in FREE_FORM_SECTIONS:
+        for name, raw_value in table.items():
+            inputs.append(InputRecord(f"{key_prefix}.{name}", str(raw_value), raw_value, ""))
+        return dict(table)
     values: dict[str, Any] = {}
     for name, raw_value in table.items():
         key = f"{key_prefix}.{name}"
@@ -473,12 +555,14 @@ def _check_consistency(sections, vessels, path, warnings) -> None:
                             "process.accumulation_basis", path)
 
     mtt = process.max_technical_temperature
-    if mtt is None:
+    solvent = sections.get("solvent")
+    if mtt is None and (solvent is None or solvent.name is None):
         raise CaseError("missing max_technical_temperature (MTT: boiling point at operating "
                         "pressure or the temperature at the relief set pressure), e.g. "
-                        "max_technical_temperature = \"111 degC\"",
+                        "max_technical_temperature = \"111 degC\", or give [solvent] name and "
+                        "pressure to compute the boiling point",
                         "process.max_technical_temperature", path)
-    if process.temperature > mtt + 1e-9:
+    if mtt is not None and process.temperature > mtt + 1e-9:
         raise CaseError(
             f"process temperature {process.temperature - 273.15:.1f} degC is above the MTT "
             f"{mtt - 273.15:.1f} degC, impossible at the stated pressure (a process at reflux "
@@ -491,6 +575,8 @@ def _check_consistency(sections, vessels, path, warnings) -> None:
                         "onset_temperature, better energy, model and kinetics",
                         "decomposition", path)
     _check_decomposition(decomposition, path)
+
+    _run_extra_checks(sections, vessels, path, warnings)
 
     for vessel, index in zip(vessels, range(1, len(vessels) + 1)):
         prefix = f"vessel.{index}" if len(vessels) > 1 else "vessel"
@@ -519,6 +605,30 @@ def _check_consistency(sections, vessels, path, warnings) -> None:
         if vessel.heat_losses and vessel.ambient_temperature is None:
             raise CaseError("heat_losses need ambient_temperature", f"{prefix}.ambient_temperature",
                             path)
+
+
+#: Cross-field checks that live beside the feature they serve ("module:function"); each is
+#: called as f(sections, vessels, path, warnings) and raises CaseError.
+EXTRA_CHECKS = (
+    "screen.simulation:check_case",
+    "screen.barrier:check_case",
+    "screen.scenarios:check_case",
+    "screen.uncertainty:check_case",
+)
+
+
+def _run_extra_checks(sections, vessels, path, warnings) -> None:
+    import importlib
+
+    for target in EXTRA_CHECKS:
+        module_name, function_name = target.split(":")
+        try:
+            module = importlib.import_module(module_name)
+        except ModuleNotFoundError as exc:
+            if exc.name == module_name:
+                continue
+            raise
+        getattr(module, function_name)(sections, vessels, path, warnings)
 
 
 def _check_decomposition(decomposition: Section, path: str) -> None:

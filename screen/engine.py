@@ -192,7 +192,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     dec = case.sections["decomposition"]
     cp = float(mass.specific_heat)
     t_p = float(process.temperature)
-    mtt = float(process.max_technical_temperature)
+    mtt = maximum_technical_temperature(case, methods, warnings)
 
     # Synthesis: adiabatic rise and MTSR.
     q_syn = synthesis_specific_energy(case)
@@ -355,7 +355,79 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
                              curves=curve_data)
     _add_vessels(case, result, kinetics, mtsr)
+    _add_features(case, result, curves)
     return result
+
+
+#: Optional analyses composed after the core figures: (case section or None, "module:function").
+#: Each function is called as f(case, result, curves=bool) and adds its own "results" member.
+FEATURES = (
+    ("synthesis_kinetics", "screen.simulation:add_simulation"),
+    ("solvent", "screen.pressure_check:add_pressure"),
+    (None, "screen.barrier:add_barrier"),
+    ("scenarios", "screen.scenarios:add_scenarios"),
+)
+
+
+def _add_features(case, result, curves: bool) -> None:
+    import importlib
+
+    for section, target in FEATURES:
+        if section is not None and section not in case.sections:
+            continue
+        module_name, function_name = target.split(":")
+        try:
+            module = importlib.import_module(module_name)
+        except ModuleNotFoundError as exc:
+            if exc.name == module_name:
+                continue
+            raise
+        getattr(module, function_name)(case, result, curves=curves)
+
+
+def maximum_technical_temperature(case, methods, warnings) -> float:
+    """MTT [K]: as given, or the boiling point of the named solvent at the operating pressure."""
+    from screen.constants import STANDARD_ATMOSPHERE
+    from screen.errors import CaseError
+
+    process = case.sections["process"]
+    solvent = case.sections.get("solvent")
+    given = process.max_technical_temperature
+    if solvent is None or solvent.name is None:
+        methods["mtt"] = "MTT as given in the case" + (
+            f" ({process.mtt_basis})" if process.mtt_basis else "")
+        return float(given)
+    from screen.models import solvents
+
+    try:
+        data = solvents.lookup_solvent(solvent.name, key="solvent.name")
+        pressure = float(solvent.pressure) if solvent.pressure else STANDARD_ATMOSPHERE
+        boiling = float(solvents.boiling_temperature(data, pressure))
+    except ScreenError as exc:
+        raise CaseError(exc.message, exc.key or "solvent", case.path) from None
+    if solvent.pressure is None:
+        warnings.append(f"solvent.pressure not given: the boiling point of {data.name} is taken "
+                        f"at 1.01325 bar.")
+    methods["mtt_solvent"] = (f"Boiling point of {data.name} at {pressure / 1e5:.4g} bar from "
+                              f"DIPPR/Perry's vapour-pressure coefficients (chemicals package "
+                              f"data, bundled table)")
+    if given is None:
+        mtt = boiling
+        methods["mtt"] = methods["mtt_solvent"]
+    else:
+        mtt = float(given)
+        methods["mtt"] = "MTT as given in the case" + (
+            f" ({process.mtt_basis})" if process.mtt_basis else "")
+        if abs(given - boiling) > 5.0:
+            warnings.append(f"The given MTT ({given - ZERO_CELSIUS:.1f} degC) differs from the "
+                            f"boiling point of {data.name} at {pressure / 1e5:.4g} bar "
+                            f"({boiling - ZERO_CELSIUS:.1f} degC) by more than 5 K: check both.")
+    if process.temperature > mtt + 1e-9:
+        raise CaseError(f"process temperature {process.temperature - ZERO_CELSIUS:.1f} degC is "
+                        f"above the MTT {mtt - ZERO_CELSIUS:.1f} degC (boiling point of "
+                        f"{data.name} at {pressure / 1e5:.4g} bar): impossible at that pressure",
+                        "process.temperature", case.path)
+    return mtt
 
 
 def _verdict_text(klass, severity_4, probability_6, status):

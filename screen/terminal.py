@@ -88,7 +88,7 @@ def format_check(data: dict) -> str:
     if vessels:
         lines.append("")
         lines.extend(format_vessels(vessels))
-    for block in ("simulation", "scenarios", "uncertainty"):
+    for block in ("simulation", "pressure", "barrier", "scenarios", "uncertainty"):
         if block in r and isinstance(r[block], dict) and r[block].get("summary_lines"):
             lines.append("")
             lines.extend(r[block]["summary_lines"])
