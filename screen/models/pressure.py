@@ -1,0 +1,286 @@
+"""Pressure in a closed vessel from solvent vapour, pad gas and decomposition gas.
+
+Model (all pressures absolute):
+
+.. math:: p(T) = x\\,p_{sat}(T) + p_{pad,0}\\,\\frac{T}{T_0} + \\frac{n_{gas} R T}{V_{head}}
+
+with :math:`p_{pad,0} = p_0 - x\\,p_{sat}(T_0)` the partial pressure of the inert pad gas when the
+vessel was closed at :math:`T_0` and total pressure :math:`p_0`.
+
+Assumptions (each is stated in ``docs/evaporation.md``):
+
+- the vapour follows Raoult's law; by default the liquid is pure solvent (mole fraction 1), the
+  conservative choice when the solvent is the most volatile component;
+- pad gas and decomposition gas are ideal gases, not dissolved in the liquid (no solubility: more
+  gas in the headspace, higher pressure: conservative);
+- the headspace volume is constant (thermal expansion of the liquid, which shrinks the headspace,
+  and the volume of gas-forming solids are neglected: not conservative for nearly full vessels);
+- gas and liquid are at one temperature; no relief, no leak.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from screen.constants import GAS_CONSTANT
+from screen.errors import CaseError, ModelDomainError
+from screen.models.solvents import Solvent, vapour_pressure
+
+#: Default margin below the relief set pressure inside which the verdict is "near" (design).
+RELIEF_MARGIN = 0.10
+
+
+def _positive(value: float, name: str, unit: str, allow_zero: bool = False) -> float:
+    value = float(value)
+    if not math.isfinite(value) or value < 0.0 or (value == 0.0 and not allow_zero):
+        requirement = "non-negative" if allow_zero else "positive"
+        raise ModelDomainError(f"{name} must be {requirement} and finite, got {value} {unit}")
+    return value
+
+
+@dataclass(frozen=True)
+class ClosedVesselPressure:
+    """The parts of the closed-vessel pressure.
+
+    Attributes
+    ----------
+    vapour : float
+        Partial pressure of the solvent vapour. [Pa]
+    pad_gas : float
+        Partial pressure of the pad gas present at closing. [Pa]
+    decomposition_gas : float
+        Partial pressure of the non-condensable gas formed since. [Pa]
+    total : float
+        Sum of the three, absolute. [Pa]
+    """
+
+    vapour: float
+    pad_gas: float
+    decomposition_gas: float
+    total: float
+
+
+def ideal_gas_pressure(gas_moles: float, temperature: float, volume: float) -> float:
+    """Pressure of an ideal gas.
+
+    .. math:: p = n R T / V
+
+    Parameters
+    ----------
+    gas_moles : float
+        Amount of gas. [mol]
+    temperature : float
+        Temperature. [K]
+    volume : float
+        Gas volume. [m^3]
+
+    Returns
+    -------
+    float
+        Pressure. [Pa]
+
+    Raises
+    ------
+    ModelDomainError
+        Negative amount, non-positive temperature or volume.
+    """
+    gas_moles = _positive(gas_moles, "gas amount", "mol", allow_zero=True)
+    temperature = _positive(temperature, "temperature", "K")
+    volume = _positive(volume, "headspace volume", "m^3")
+    return gas_moles * GAS_CONSTANT * temperature / volume
+
+
+def decomposition_gas_moles(mass: float, specific_gas_yield: float, conversion: float = 1.0) -> float:
+    """Non-condensable gas formed by a decomposition.
+
+    .. math:: n = m \\, y \\, X
+
+    Parameters
+    ----------
+    mass : float
+        Mass of the decomposing material (or of the reaction mass the yield refers to). [kg]
+    specific_gas_yield : float
+        Gas formed per kg at full conversion, as measured (e.g. in a closed-cell test). [mol/kg]
+    conversion : float, optional
+        Conversion of the decomposition, 0 to 1; 1 (complete) by default. [-]
+
+    Returns
+    -------
+    float
+        Amount of gas. [mol]
+
+    Raises
+    ------
+    ModelDomainError
+        Negative mass or yield, or a conversion outside 0 to 1.
+    """
+    mass = _positive(mass, "mass", "kg", allow_zero=True)
+    specific_gas_yield = _positive(specific_gas_yield, "specific gas yield", "mol/kg", allow_zero=True)
+    conversion = float(conversion)
+    if not 0.0 <= conversion <= 1.0:
+        raise ModelDomainError(f"conversion must lie between 0 and 1, got {conversion}")
+    return mass * specific_gas_yield * conversion
+
+
+def closed_vessel_pressure_components(
+    temperature: float,
+    solvent: Solvent,
+    headspace_volume: float,
+    gas_moles: float = 0.0,
+    initial_pressure: float = 0.0,
+    initial_temperature: float | None = None,
+    liquid_mole_fraction: float = 1.0,
+) -> ClosedVesselPressure:
+    """Vapour, pad-gas and decomposition-gas pressure in a closed vessel.
+
+    .. math:: p = x\\,p_{sat}(T) + (p_0 - x\\,p_{sat}(T_0))\\,T/T_0 + n R T / V_{head}
+
+    Raoult's law for the vapour, ideal gas for the rest (see the module docstring for the
+    assumptions).
+
+    Parameters
+    ----------
+    temperature : float
+        Temperature of the vessel contents. [K]
+    solvent : Solvent
+        The volatile solvent (from :func:`screen.models.solvents.lookup_solvent`).
+    headspace_volume : float
+        Gas volume above the liquid, taken as constant. [m^3]
+    gas_moles : float, optional
+        Non-condensable gas formed since closing, e.g. from :func:`decomposition_gas_moles`. [mol]
+    initial_pressure : float, optional
+        Total absolute pressure when the vessel was closed (0: no pad gas, a conservative choice
+        only if the vessel was really evacuated). [Pa]
+    initial_temperature : float, optional
+        Temperature when the vessel was closed; required when ``initial_pressure`` is given. [K]
+    liquid_mole_fraction : float, optional
+        Mole fraction of the solvent in the liquid; 1 (pure solvent) by default. [-]
+
+    Returns
+    -------
+    ClosedVesselPressure
+        The partial pressures and the total. [Pa]
+
+    Raises
+    ------
+    CaseError
+        ``initial_pressure`` given without ``initial_temperature``.
+    ModelDomainError
+        Non-physical input, a temperature outside the vapour-pressure correlation, or an initial
+        pressure below the solvent's partial pressure at closing (the liquid would have boiled).
+    """
+    temperature = _positive(temperature, "temperature", "K")
+    headspace_volume = _positive(headspace_volume, "headspace volume", "m^3")
+    initial_pressure = _positive(initial_pressure, "initial pressure", "Pa", allow_zero=True)
+    liquid_mole_fraction = float(liquid_mole_fraction)
+    if not 0.0 < liquid_mole_fraction <= 1.0:
+        raise ModelDomainError(f"liquid mole fraction must lie in (0, 1], got {liquid_mole_fraction}")
+    vapour = liquid_mole_fraction * vapour_pressure(solvent, temperature)
+    pad_gas = 0.0
+    if initial_pressure > 0.0:
+        if initial_temperature is None:
+            raise CaseError("the temperature at which the vessel was closed is required with an initial pressure")
+        initial_temperature = _positive(initial_temperature, "initial temperature", "K")
+        pad_gas_at_closing = initial_pressure - liquid_mole_fraction * vapour_pressure(solvent, initial_temperature)
+        if pad_gas_at_closing < 0.0:
+            raise ModelDomainError(
+                f"initial pressure {initial_pressure:.6g} Pa is below the vapour pressure of {solvent.name} at "
+                f"{initial_temperature:.6g} K: the liquid would boil at closing"
+            )
+        pad_gas = pad_gas_at_closing * temperature / initial_temperature
+    decomposition_gas = ideal_gas_pressure(gas_moles, temperature, headspace_volume)
+    return ClosedVesselPressure(
+        vapour=vapour,
+        pad_gas=pad_gas,
+        decomposition_gas=decomposition_gas,
+        total=vapour + pad_gas + decomposition_gas,
+    )
+
+
+def closed_vessel_pressure(
+    temperature: float,
+    solvent: Solvent,
+    headspace_volume: float,
+    gas_moles: float = 0.0,
+    initial_pressure: float = 0.0,
+    initial_temperature: float | None = None,
+    liquid_mole_fraction: float = 1.0,
+) -> float:
+    """Total absolute pressure in a closed vessel.
+
+    The total of :func:`closed_vessel_pressure_components`; same parameters and equation:
+
+    .. math:: p = x\\,p_{sat}(T) + (p_0 - x\\,p_{sat}(T_0))\\,T/T_0 + n R T / V_{head}
+
+    Parameters
+    ----------
+    temperature : float
+        Temperature of the vessel contents. [K]
+    solvent : Solvent
+        The volatile solvent.
+    headspace_volume : float
+        Gas volume above the liquid, taken as constant. [m^3]
+    gas_moles : float, optional
+        Non-condensable gas formed since closing. [mol]
+    initial_pressure : float, optional
+        Total absolute pressure when the vessel was closed. [Pa]
+    initial_temperature : float, optional
+        Temperature when the vessel was closed. [K]
+    liquid_mole_fraction : float, optional
+        Mole fraction of the solvent in the liquid (Raoult). [-]
+
+    Returns
+    -------
+    float
+        Total absolute pressure. [Pa]
+    """
+    return closed_vessel_pressure_components(
+        temperature,
+        solvent,
+        headspace_volume,
+        gas_moles=gas_moles,
+        initial_pressure=initial_pressure,
+        initial_temperature=initial_temperature,
+        liquid_mole_fraction=liquid_mole_fraction,
+    ).total
+
+
+def relief_verdict(pressure: float, relief_set_pressure: float, margin: float = RELIEF_MARGIN) -> tuple[str, str]:
+    """Compare a closed-vessel pressure with the relief set pressure.
+
+    ``"exceeds"`` when ``p >= p_set`` (a tie counts as reaching it), ``"near"`` when
+    ``p >= (1 - margin) p_set``, ``"below"`` otherwise. The 10 % default margin is a design choice
+    (no published basis): set pressures, gas yields and vapour pressures all carry uncertainty.
+
+    Parameters
+    ----------
+    pressure : float
+        Absolute pressure in the vessel. [Pa]
+    relief_set_pressure : float
+        Set pressure of the relief device, absolute (convert a gauge set pressure first). [Pa]
+    margin : float, optional
+        Fraction of the set pressure below it that still counts as "near". [-]
+
+    Returns
+    -------
+    tuple of (str, str)
+        ``("exceeds" | "near" | "below", reason)``.
+
+    Raises
+    ------
+    ModelDomainError
+        Non-positive or non-finite pressures, or a margin outside [0, 1).
+    """
+    pressure = _positive(pressure, "pressure", "Pa")
+    relief_set_pressure = _positive(relief_set_pressure, "relief set pressure", "Pa")
+    margin = float(margin)
+    if not 0.0 <= margin < 1.0:
+        raise ModelDomainError(f"margin must lie in [0, 1), got {margin}")
+    ratio = pressure / relief_set_pressure
+    text = f"{pressure / 1e5:.4g} bar(a) against a set pressure of {relief_set_pressure / 1e5:.4g} bar(a)"
+    if ratio >= 1.0:
+        return "exceeds", f"{text}: the relief device opens"
+    if ratio >= 1.0 - margin:
+        return "near", f"{text}: within {margin:.0%} of the set pressure (design margin)"
+    return "below", f"{text}: below the set pressure by more than {margin:.0%}"
