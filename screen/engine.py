@@ -24,8 +24,9 @@ from screen.models import thermal
 #: Crude onset-only estimate: zero order with a low activation energy, the DSC onset read as the
 #: temperature where the heat release reaches the detection limit of a dynamic DSC run
 #: (Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41; values from memory, design).
+#: The same constants as the crude estimate of the ``kinetics`` command (screen.models.dsc).
 ONSET_ESTIMATE_ACTIVATION_ENERGY = 50e3  # J/mol
-ONSET_ESTIMATE_DETECTION_LIMIT = 10.0  # W/kg
+ONSET_ESTIMATE_DETECTION_LIMIT = 20.0  # W/kg
 #: Extrapolation of decomposition kinetics below the lowest measured temperature that triggers
 #: a warning [K] (design).
 EXTRAPOLATION_WARNING_K = 50.0
@@ -293,8 +294,15 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     probability_6 = crit.probability_level(tmr_h, 6)
     probability_3 = crit.probability_level(tmr_h, 3)
 
+    reported_class: int | None = int(klass)
     if basis == "onset-estimate":
-        verdict_status = "crude-estimate"
+        # Fail closed: a crude estimate may confirm a high class but never grant a low one.
+        if klass >= 4:
+            verdict_status = "crude-estimate"
+        else:
+            verdict_status = "cannot-conclude"
+            reported_class = None
+            probability_6 = probability_3 = None
     else:
         verdict_status = "screened"
     verdict = _verdict_text(klass, severity_4, probability_6, verdict_status)
@@ -320,8 +328,10 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
         "td24_degC": to_celsius(td24),
         "td8_degC": to_celsius(td8),
         "onset_margin_K": td24 - mtsr,
-        "criticality_class": int(klass),
-        "criticality_meaning": crit.CLASS_MEANINGS[int(klass)],
+        "criticality_class": reported_class,
+        "criticality_class_computed": int(klass),
+        "criticality_meaning": (crit.CLASS_MEANINGS[int(klass)] if reported_class is not None
+                                else "Cannot conclude: no decomposition kinetics."),
         "severity": severity_3,
         "severity_4": severity_4,
         "probability": probability_3,
@@ -431,11 +441,16 @@ def maximum_technical_temperature(case, methods, warnings) -> float:
 
 
 def _verdict_text(klass, severity_4, probability_6, status):
+    if status == "cannot-conclude":
+        return (f"CANNOT CONCLUDE: decomposition kinetics are missing. A crude estimate from the "
+                f"DSC onset alone gives class {klass}, which is not enough to grant a class below "
+                f"4. Measure the decomposition kinetics (DSC at several heating rates, or "
+                f"adiabatic calorimetry) and rerun. Severity {severity_4}.")
     text = (f"Criticality class {klass}: {crit.CLASS_MEANINGS[klass]} Severity {severity_4}, "
             f"probability {probability_6}.")
     if status == "crude-estimate":
-        text = ("CANNOT CONCLUDE ON A LOW CLASS - decomposition kinetics missing; the figures "
-                "rest on a crude onset estimate. " + text)
+        text = ("Crude estimate from the DSC onset only (decomposition kinetics missing); it "
+                "already gives a high class. " + text)
     return text
 
 

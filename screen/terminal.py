@@ -81,8 +81,12 @@ def format_check(data: dict) -> str:
         lines.append(f"  DSC onset (info only)          {r['dsc_onset_degC']:8.1f} degC, "
                      f"{r['dsc_onset_minus_mtsr_K']:+.0f} K from MTSR")
     lines.append("")
-    lines.append(f"Verdict: CLASS {r['criticality_class']}   severity {r['severity_4']} "
-                 f"({r['severity']}), probability {r['probability_6']} ({r['probability']})")
+    if r["criticality_class"] is None:
+        lines.append(f"Verdict: CANNOT CONCLUDE (no class granted)   severity {r['severity_4']} "
+                     f"({r['severity']})")
+    else:
+        lines.append(f"Verdict: CLASS {r['criticality_class']}   severity {r['severity_4']} "
+                     f"({r['severity']}), probability {r['probability_6']} ({r['probability']})")
     lines.append(_wrap(r["verdict"]))
     vessels = r.get("vessels") or []
     if vessels:
