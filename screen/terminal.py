@@ -118,12 +118,12 @@ def format_vessels(vessels) -> list[str]:
         return "n/a" if value is None else format(value, fmt)
 
     lines = ["Vessels (Semenov heat balance of the decomposition; synthesis cooling check)"]
-    header = (f"  {'vessel':<16}{'fill m3':>8}{'A m2':>7}{'A/V':>6}{'UA W/K':>9}{'W/kg':>7}"
+    header = (f"  {'vessel':<24}{'fill m3':>8}{'A m2':>7}{'A/V':>6}{'UA W/K':>9}{'W/kg':>7}"
               f"{'tau h':>7}{'Tc,crit':>8}{'T_NR':>7}{'ratio':>7}")
     lines.append(header)
     for v in vessels:
         lines.append(
-            f"  {v['name'][:15]:<16}{num(v.get('fill_volume_m3'), '8.3g')}"
+            f"  {v['name'][:23]:<24}{num(v.get('fill_volume_m3'), '8.3g')}"
             f"{num(v.get('heat_transfer_area_m2'), '7.3g')}"
             f"{num(v.get('area_to_volume_per_m'), '6.3g')}"
             f"{num(v.get('ua_W_per_K'), '9.4g')}"

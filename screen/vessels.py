@@ -89,11 +89,32 @@ def vessel_results(case, kinetics, mtsr):
     q_syn = synthesis_specific_energy(case)
     rise_syn = q_syn / cp
     e_dec = float(np.asarray(kinetics.activation_energy))
-    # Zero-order fresh-mass rate, anchored where it is well inside floating-point range.
+    # Zero-order heat release, anchored where it is well inside floating-point range. For an
+    # autocatalytic decomposition the fresh-mass rate (at a0) is far below the rate the mass
+    # reaches, so the rate at the maximum of f(a) = a^m (1-a)^n, a* = m/(m+n), is used instead
+    # (conservative; derived).
     t_ref = float(dm.td24(kinetics, cp))
-    q_ref = float(kinetics.heat_release_rate(t_ref))
+    conversion_basis = None
+    warnings: list[str] = []
+    if kinetics.model == "autocatalytic":
+        m_order, n_order = float(kinetics.autocatalytic_order), float(kinetics.order)
+        a_star = 1.0 - 1e-9 if n_order == 0 else m_order / (m_order + n_order)
+        a_star = max(float(kinetics.initial_conversion), a_star)
+        q_ref = float(kinetics.heat_release_rate(t_ref, conversion=a_star))
+        conversion_basis = a_star
+        warnings.append(
+            f"Vessel heat balance of the autocatalytic decomposition uses the heat release rate "
+            f"at the conversion of maximum f(a) (a = {a_star:.3g}), not the fresh-mass rate, which "
+            f"would overstate the margins.")
+    else:
+        q_ref = float(kinetics.heat_release_rate(t_ref))
+    crude = result_basis_is_crude(case)
+    if crude:
+        warnings.append("Vessel heat balance rests on the crude onset estimate of the "
+                        "decomposition: T_NR and the critical coolant temperature are shown for "
+                        "information only; no vessel is declared stable.")
 
-    entries, curves, warnings = [], [], []
+    entries, curves = [], []
     multiple = len(case.vessels) > 1
     for index, vessel in enumerate(case.vessels, start=1):
         prefix = f"vessel.{index}" if multiple else "vessel"
@@ -121,7 +142,10 @@ def vessel_results(case, kinetics, mtsr):
         except ScreenError as exc:
             raise type(exc)(f"{vessel.name}: {exc.message}", prefix, case.path) from None
         t_star = float(critical.tangency_temperature)
-        t_c_crit = float(critical.critical_coolant_temperature)
+        t_c_crit_eff = float(critical.critical_coolant_temperature)
+        # With losses the balance uses an equivalent sink; report the coolant-side value.
+        t_c_crit = ((ua_eff * t_c_crit_eff - losses * float(t_amb)) / ua if losses > 0.0
+                    else t_c_crit_eff)
         if t_nr is not None and not math.isfinite(t_nr):
             t_nr = None
         tmr_nr = float(dm.tmrad(kinetics, t_nr, cp)) / SECONDS_PER_HOUR if t_nr else None
@@ -141,11 +165,12 @@ def vessel_results(case, kinetics, mtsr):
             "specific_cooling_capacity_W_per_kg": ua * (t_p - t_c) / mass,
             "time_constant_h": tau / SECONDS_PER_HOUR,
             "critical_coolant_temperature_degC": _c(t_c_crit),
-            "coolant_margin_K": t_c_crit - t_c_eff,
+            "coolant_margin_K": t_c_crit - t_c,
             "tangency_temperature_degC": _c(t_star),
-            "critical_temperature_difference_K": t_star - t_c_crit,
+            "critical_temperature_difference_K": t_star - t_c_crit_eff,
             "critical_temperature_difference_linearised_K": float(
-                semenov.linearised_critical_temperature_difference(t_c_crit, e_dec)),
+                semenov.linearised_critical_temperature_difference(t_c_crit_eff, e_dec)),
+            "decomposition_rate_conversion_basis": conversion_basis,
             "stable_temperature_degC": _c(t_stable) if t_stable is not None else None,
             "no_return_temperature_degC": _c(t_nr) if t_nr is not None else None,
             "tmrad_at_no_return_h": tmr_nr,
@@ -153,9 +178,14 @@ def vessel_results(case, kinetics, mtsr):
             "semenov_number_critical": 1.0 / math.e,
             "mtsr_above_no_return": mtsr_above_nr,
         }
-        entry.update(_synthesis_check(case, vessel, mass, ua, t_p, t_c, q_syn, rise_syn, cp,
-                                      semenov))
-        entry["stability"], entry["verdict"] = _vessel_verdict(entry, t_nr, mtsr)
+        ua_synthesis, check_mass, area_note = _ua_at_smallest_fill(case, vessel, mass, ua, u)
+        entry.update(_synthesis_check(case, vessel, mass, ua_synthesis, t_p, t_c, q_syn,
+                                      rise_syn, cp, semenov))
+        entry["synthesis_check_fill_mass_kg"] = check_mass
+        entry["synthesis_check_ua_W_per_K"] = ua_synthesis
+        if area_note:
+            entry["synthesis_check_area_note"] = area_note
+        entry["stability"], entry["verdict"] = _vessel_verdict(entry, t_nr, mtsr, crude)
         if entry["stability"] != "stable":
             warnings.append(f"{vessel.name}: {entry['verdict']}")
         if entry.get("synthesis_stability") == "unstable" or (
@@ -163,9 +193,38 @@ def vessel_results(case, kinetics, mtsr):
                 and entry["synthesis_cooling_ratio"] < 1.0):
             warnings.append(f"{vessel.name}: {entry['synthesis_verdict']}")
         entries.append(entry)
-        curves.append(_semenov_curve(vessel.name, mass, ua_eff, t_c_eff, t_c_crit, t_nr, t_star,
+        curves.append(_semenov_curve(vessel.name, mass, ua_eff, t_c_eff, t_c_crit_eff, t_nr, t_star,
                                      q_ref, t_ref, e_dec, mtsr, t_p))
     return entries, curves, warnings
+
+
+def _ua_at_smallest_fill(case, vessel, mass, ua, u):
+    """U A for the synthesis check: in semi-batch the wetted area is smallest at the start of
+    dosing, while a dosing-controlled heat release is already at its level (conservative)."""
+    from screen.models import vessel as geometry
+
+    process = case.sections["process"]
+    if process.mode != "semi-batch":
+        return ua, mass, None
+    kinetics = case.sections.get("synthesis_kinetics")
+    scale = mass / case.sections["mass"].amount
+    if kinetics is not None and kinetics.initial_mass is not None:
+        initial = float(kinetics.initial_mass) * scale
+    elif process.accumulation_mass_ratio is not None:
+        initial = float(process.accumulation_mass_ratio) * mass
+    else:
+        initial = None
+    if vessel.heat_transfer_area is not None:
+        return ua, mass, ("heat_transfer_area is given: taken as valid during the whole dosing "
+                          "(the wetted area is smaller at the start of dosing)")
+    if initial is None:
+        return ua, mass, ("initial charge unknown: cooling check at the final fill; give "
+                          "process.accumulation_mass_ratio or synthesis_kinetics.initial_mass")
+    density = case.sections["mass"].density
+    area = float(geometry.wetted_area(initial / density, vessel.diameter, vessel.bottom,
+                                      jacket_height=vessel.jacket_height,
+                                      vessel_volume=vessel.volume))
+    return u * area, initial, None
 
 
 def _synthesis_check(case, vessel, mass, ua, t_p, t_c, q_syn, rise_syn, cp, semenov):
@@ -214,18 +273,36 @@ def _synthesis_check(case, vessel, mass, ua, t_p, t_c, q_syn, rise_syn, cp, seme
     t_max = float(semenov.max_stable_coolant_temperature(mass, ua, t_p, peak,
                                                          synthesis.activation_energy))
     out["synthesis_slope_ratio"] = float(stability.slope_ratio)
-    out["synthesis_stability"] = "stable" if stability.stable and ratio >= 1.0 else "unstable"
+    stable = stability.stable and ratio >= 1.0
+    if stable and basis.startswith("dosing-controlled"):
+        # The dosing average is not an upper bound of the peak (design: never called plainly
+        # "stable"; a measured peak or the simulation is needed for that).
+        out["synthesis_stability"] = "stable-estimate"
+    else:
+        out["synthesis_stability"] = "stable" if stable else "unstable"
     out["synthesis_max_stable_coolant_temperature_degC"] = _c(t_max)
     parts = [f"cooling capacity / peak heat release = {ratio:.2f}"]
     if ratio < 1.0:
         parts.append("cooling cannot carry the peak heat release at T_p")
     parts.append(f"generation/removal slope ratio {stability.slope_ratio:.2f}"
                  + (" (Semenov-stable)" if stability.stable else " (Semenov-UNSTABLE)"))
+    if out["synthesis_stability"] == "stable-estimate":
+        parts.append("based on the dosing-average release, which is not an upper bound of the "
+                     "peak: confirm with a measured peak or the simulation")
     out["synthesis_verdict"] = "; ".join(parts)
     return out
 
 
-def _vessel_verdict(entry, t_nr, mtsr):
+def result_basis_is_crude(case) -> bool:
+    """True when the decomposition rests on the onset-only estimate (no kinetics)."""
+    return case.sections["decomposition"].model is None
+
+
+def _vessel_verdict(entry, t_nr, mtsr, crude=False):
+    if crude:
+        return ("cannot-conclude",
+                "CANNOT CONCLUDE: decomposition kinetics missing (crude onset estimate); the "
+                "heat-balance figures are for information only.")
     if t_nr is None:
         return ("no-stable-point",
                 f"NO STABLE POINT: the coolant ({entry['coolant_temperature_degC']:.1f} degC) is at "
@@ -239,9 +316,9 @@ def _vessel_verdict(entry, t_nr, mtsr):
                 f"MTSR, restored cooling cannot bring it back.")
     margin = t_nr - mtsr
     return ("stable",
-            f"stable: T_NR {entry['no_return_temperature_degC']:.1f} degC lies {margin:.0f} K "
-            f"above MTSR; coolant {entry['coolant_margin_K']:.0f} K below its critical "
-            f"temperature.")
+            f"recoverable: if cooling is restored at MTSR the mass can be brought back (T_NR "
+            f"{entry['no_return_temperature_degC']:.1f} degC lies {margin:.0f} K above MTSR); "
+            f"coolant {entry['coolant_margin_K']:.0f} K below its critical temperature.")
 
 
 def _semenov_curve(name, mass, ua, t_c, t_c_crit, t_nr, t_star, q_ref, t_ref, e, mtsr, t_p):

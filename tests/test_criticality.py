@@ -100,3 +100,14 @@ def test_levels_reject_nan():
         probability_level(float("nan"))
     with pytest.raises(ValueError):
         severity_level(float("nan"))
+
+
+def test_nan_fails_closed():
+    # Design: an unknown temperature never yields a low class (fail closed).
+    from screen.errors import ModelDomainError
+
+    with pytest.raises(ModelDomainError):
+        criticality_class(TP, 350.0, 400.0, float("nan"))
+    assert list(criticality_class(TP, [350.0, 350.0], 400.0, [450.0, float("nan")])) == [1, 5]
+    assert PROBABILITY_6_LEVELS[int(probability_codes(float("nan")))] == "frequent"
+    assert SEVERITY_4_LEVELS[int(severity_codes(float("nan")))] == "catastrophic"

@@ -30,6 +30,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from screen.errors import ModelDomainError
+
 CLASS_MEANINGS = {
     1: "No runaway expected: the synthesis cannot reach the decomposition range, and boiling "
        "(MTT) would act as a further barrier.",
@@ -78,6 +80,9 @@ def criticality_class(process_temperature, mtsr, mtt, td24):
     """
     tp, ms, mt, td = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in
                                            (process_temperature, mtsr, mtt, td24)))
+    unknown = ~(np.isfinite(tp) & np.isfinite(ms) & np.isfinite(mt) & np.isfinite(td))
+    if unknown.ndim == 0 and bool(unknown):
+        raise ModelDomainError("criticality class needs finite T_p, MTSR, MTT and TD24")
     decomposition_reached = ms >= td
     boiling_reached = ms >= mt
     result = np.where(
@@ -86,6 +91,8 @@ def criticality_class(process_temperature, mtsr, mtt, td24):
         np.where(boiling_reached, 3, np.where(mt < td, 1, 2)),
     )
     result = np.where(td <= tp, 5, result)
+    # Fail closed in arrays: an unknown temperature counts as the most critical class.
+    result = np.where(unknown, 5, result)
     if result.ndim == 0:
         return int(result)
     return result.astype(int)
@@ -109,7 +116,7 @@ def severity_level(adiabatic_rise, levels: int = 4):
     """
     rise = float(adiabatic_rise)
     if not np.isfinite(rise):
-        raise ValueError("adiabatic rise must be finite")
+        raise ModelDomainError("adiabatic rise must be finite")
     if levels == 4:
         if rise >= 400.0:
             return "catastrophic"
@@ -146,7 +153,7 @@ def probability_level(tmrad_hours, levels: int = 6):
     """
     tmr = float(tmrad_hours)
     if np.isnan(tmr) or tmr < 0:
-        raise ValueError("TMRad must be a non-negative number")
+        raise ModelDomainError("TMRad must be a non-negative number")
     if levels == 6:
         for limit, name in ((1.0, "frequent"), (8.0, "probable"), (24.0, "occasional"),
                             (50.0, "seldom"), (100.0, "remote")):
@@ -165,10 +172,12 @@ def probability_level(tmrad_hours, levels: int = 6):
 def severity_codes(adiabatic_rise):
     """Vectorised 4-level severity as integer codes 0..3 (index into SEVERITY_4_LEVELS)."""
     rise = np.asarray(adiabatic_rise, dtype=float)
-    return np.searchsorted(np.array([50.0, 200.0, 400.0]), rise, side="right")
+    codes = np.searchsorted(np.array([50.0, 200.0, 400.0]), rise, side="right")
+    return np.where(np.isnan(rise), 3, codes)  # unknown rise: "catastrophic" (fail closed)
 
 
 def probability_codes(tmrad_hours):
     """Vectorised 6-level probability as integer codes 0..5 (index into PROBABILITY_6_LEVELS)."""
     tmr = np.asarray(tmrad_hours, dtype=float)
-    return np.searchsorted(np.array([1.0, 8.0, 24.0, 50.0, 100.0]), tmr, side="left")
+    codes = np.searchsorted(np.array([1.0, 8.0, 24.0, 50.0, 100.0]), tmr, side="left")
+    return np.where(np.isnan(tmr), 0, codes)  # unknown TMRad: "frequent" (fail closed)
