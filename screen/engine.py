@@ -204,6 +204,9 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     else:
         accumulation = float(process.get("accumulation", 1.0))
         mass_ratio = 1.0
+        if process.accumulation_mass_ratio is not None:
+            warnings.append("process.accumulation_mass_ratio is ignored in batch mode (the mass "
+                            "does not change during the step).")
     mtsr = float(thermal.maximum_temperature_synthesis_reaction(t_p, rise_syn, accumulation,
                                                                  mass_ratio))
     methods["mtsr"] = ("MTSR = T_p + X_ac dT_ad / (m(t_acc)/m_final) (Stoessel, Chem. Eng. Prog. "
@@ -271,6 +274,11 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                             "Process Ind. 10 (1997) 31-41, from memory)")
 
     lowest_measured = dec.lowest_measured_temperature or dec.reference_temperature
+    if basis == "kinetics" and lowest_measured is None:
+        warnings.append(
+            f"The temperature range in which the decomposition kinetics were measured is not "
+            f"given (decomposition.lowest_measured_temperature): TD24 "
+            f"({to_celsius(td24):.1f} degC) may rest on an extrapolation far below the data.")
     if basis == "kinetics" and lowest_measured is not None:
         gap = lowest_measured - td24
         if gap > EXTRAPOLATION_WARNING_K:
@@ -285,8 +293,6 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                         f"temperature ({to_celsius(t_p):.1f} degC): outside the class scheme; "
                         f"reported as class 5, the most critical outcome. The mass is not stable "
                         f"for 24 h even under normal conditions.")
-    if mtsr > mtt and process.mode == "batch" and accumulation >= 1.0:
-        pass  # normal class 3/4/5 logic covers it
     runaway_rise = final_temperature - t_p
     severity_4 = crit.severity_level(runaway_rise, 4)
     severity_3 = crit.severity_level(runaway_rise, 3)

@@ -190,6 +190,9 @@ def parse_quantity(raw, kind: str, key: str, path: str | None = None) -> ParsedQ
             q_value = ureg.Quantity(value, unit).to(si_unit).magnitude
             q_std = None if std is None else ureg.Quantity(std, unit).to(si_unit).magnitude
         elif kind == "temperature":
+            if "delta" in unit_text.lower():
+                raise UnitError(f"got {raw!r}; a temperature difference unit where an absolute "
+                                f"temperature is expected: write e.g. \"85 degC\"", key, path)
             q_value = ureg.Quantity(value, unit).to("K").magnitude
             # An uncertainty is a difference: convert it by the scale of the unit only.
             if std is None:

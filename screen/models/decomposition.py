@@ -541,7 +541,8 @@ def semenov_b_number(start_temperature, adiabatic_rise, activation_energy):
     References
     ----------
     N. N. Semenov, Z. Phys. 48 (1928) 571; F. A. Williams, Combustion Theory, 2nd ed.,
-    Benjamin/Cummings 1985, ch. 8 (dimensionless heat release of adiabatic explosion).
+    Benjamin/Cummings 1985 (dimensionless heat release of adiabatic explosion; chapter
+    from memory).
 
     Examples
     --------

@@ -18,7 +18,8 @@ the curve (tangency); above it no operating point exists and the contents run aw
 References
 ----------
 N. N. Semenov, "Zur Theorie des Verbrennungsprozesses", Z. Phys. 48 (1928) 571-582.
-F. A. Williams, Combustion Theory, 2nd ed., Benjamin/Cummings 1985, appendix B.
+F. A. Williams, Combustion Theory, 2nd ed., Benjamin/Cummings 1985, appendix B (appendix
+number from memory).
 D. I. Townsend, "Hazard evaluation of self-accelerating reactions", IChemE Symp. Ser. 68 (1981)
 (definition of the temperature of no return; from memory).
 D. I. Townsend, J. C. Tou, "Thermal hazard evaluation by an accelerating rate calorimeter",
