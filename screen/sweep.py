@@ -23,7 +23,7 @@ SWEEP_FIGURES = ("mtsr_degC", "td24_degC", "tmrad_at_mtsr_h", "onset_margin_K",
                  "final_temperature_degC", "criticality_class")
 VESSEL_FIGURES = ("critical_coolant_temperature_degC", "no_return_temperature_degC",
                   "synthesis_cooling_ratio", "stability", "synthesis_stability")
-VERDICTS = ("criticality_class", "stability", "synthesis_stability")
+VERDICTS = ("criticality_class", "stability", "synthesis_stability", "barrier_verdict")
 
 
 @dataclass(frozen=True)
@@ -135,6 +135,10 @@ def evaluate_point(case: Case, assignments) -> dict:
     for vessel in r.get("vessels", []):
         for name in VESSEL_FIGURES:
             row[f"{vessel['name']}:{name}"] = vessel.get(name)
+    barrier = r.get("barrier") or {}
+    for vessel in barrier.get("vessels", []) or []:
+        if "barrier_verdict" in vessel:
+            row[f"{vessel['name']}:barrier_verdict"] = vessel["barrier_verdict"]
     row["warnings"] = len(result.warnings)
     return row
 
