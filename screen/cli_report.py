@@ -1,0 +1,76 @@
+"""``runaway-screen report``: the PDF screening summary of one case.
+
+Only click is imported at module level: :mod:`screen.cli` imports this module while it builds
+the command group, so :mod:`screen.cli` itself is imported inside the command.
+"""
+
+from __future__ import annotations
+
+import click
+
+
+def load_earlier_result(path) -> dict:
+    """An earlier result as a JSON-ready dict: a ``check --json`` output or a case file.
+
+    Raises
+    ------
+    DataFileError
+        The JSON file is missing, unreadable or not a result of ``check --json``.
+    """
+    import json
+
+    from screen.errors import DataFileError
+
+    path = str(path)
+    if path.lower().endswith(".json"):
+        try:
+            with open(path, encoding="utf-8") as handle:
+                data = json.load(handle)
+        except FileNotFoundError:
+            raise DataFileError("file not found; give an earlier 'check --json' output or a "
+                                "case file", key="--since", path=path) from None
+        except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
+            raise DataFileError(f"not a readable JSON result ({exc}); give the output of "
+                                f"'runaway-screen check --json'", key="--since",
+                                path=path) from None
+        if not isinstance(data, dict) or not isinstance(data.get("results"), dict) or \
+                not isinstance(data.get("inputs"), list):
+            raise DataFileError("JSON without 'results' and 'inputs': not an output of "
+                                "'runaway-screen check --json'", key="--since", path=path)
+        return data
+    from screen.cli import run_check
+
+    return run_check(path).to_json_dict(generated_at=None)
+
+
+@click.command("report")
+@click.argument("case_file", type=click.Path(dir_okay=False))
+@click.option("-o", "--output", "output", type=click.Path(dir_okay=False), required=True,
+              metavar="FILE.pdf", help="PDF file to write.")
+@click.option("--force", is_flag=True, help="Overwrite an existing output file.")
+@click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
+              help="What-if override of a case value, e.g. --set 'process.temperature=70 degC'. "
+                   "Repeatable.")
+@click.option("--since", "since_path", type=click.Path(dir_okay=False), default=None,
+              metavar="OLD.json|OLD.toml",
+              help="Earlier result (a 'check --json' output or an older case file): adds a "
+                   "table of what changed since.")
+def report_command(case_file, output, force, overrides, since_path):
+    """Write the PDF screening summary of CASE_FILE (figures, inputs, methods, cautions)."""
+    from screen.cli import handle_errors
+
+    @handle_errors
+    def run():
+        from screen.cli import run_check, timestamp
+        from screen.report import check_output_path, write_report
+
+        check_output_path(str(output), force)  # fail before the computation, not after it
+        since = load_earlier_result(since_path) if since_path else None
+        result = run_check(case_file, overrides)
+        pages = write_report(result, output, force=force, generated_at=timestamp(),
+                             since=since)
+        klass = result.results.get("criticality_class")
+        click.echo(f"PDF written to {output} ({pages} pages; criticality class {klass}; "
+                   f"screening aid only)")
+
+    run()
