@@ -372,7 +372,41 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                              curves=curve_data)
     _add_vessels(case, result, kinetics, mtsr)
     _add_features(case, result, curves)
+    _class_from_simulated_mtsr(result, t_p, mtt, td24)
     return result
+
+
+#: A simulated MTSR this much above the stated one governs the class [K] (design).
+SIMULATED_MTSR_MARGIN = 1.0
+
+
+def _class_from_simulated_mtsr(result, t_p, mtt, td24) -> None:
+    """Fail closed: when the simulation (feed stopped at the worst moment) finds a higher MTSR
+    than the accumulation stated in [process], the class rests on the higher value."""
+    r = result.results
+    simulation = r.get("simulation")
+    if not isinstance(simulation, dict) or r.get("criticality_class") is None:
+        return
+    simulated = simulation.get("mtsr_feed_stopped_degC")
+    if simulated is None or simulated <= r["mtsr_degC"] + SIMULATED_MTSR_MARGIN:
+        return
+    new_class = int(crit.criticality_class(t_p, simulated + ZERO_CELSIUS, mtt, td24))
+    r["mtsr_governing_degC"] = simulated
+    r["mtsr_governing_basis"] = "simulation (feed stopped at the worst failure time)"
+    if new_class > r["criticality_class"]:
+        r["criticality_class_stated_mtsr"] = r["criticality_class"]
+        r["criticality_class"] = new_class
+        r["criticality_class_computed"] = new_class
+        r["criticality_meaning"] = crit.CLASS_MEANINGS[new_class]
+        r["verdict"] = _verdict_text(new_class, r["severity_4"], r["probability_6"],
+                                     r["verdict_status"])
+        r["verdict"] += (f" The class rests on the simulated MTSR ({simulated:.1f} degC), which "
+                         f"is higher than the MTSR from the stated accumulation "
+                         f"({r['mtsr_degC']:.1f} degC).")
+        result.warnings.append(
+            f"The simulated MTSR ({simulated:.1f} degC, feed stopped at the worst moment) exceeds "
+            f"the MTSR from [process] ({r['mtsr_degC']:.1f} degC): the class is raised from "
+            f"{r['criticality_class_stated_mtsr']} to {new_class}. Check the stated accumulation.")
 
 
 #: Optional analyses composed after the core figures: (case section or None, "module:function").
