@@ -160,7 +160,7 @@ SCHEMA: dict[str, dict[str, Field]] = {
         "feed_profile": _f("text", "Piecewise feed: 'start-end h: fraction; ...' e.g. "
                            "'0-1 h: 0.2; 1-3 h: 0.8'"),
         "feed_temperature": _f("temperature", "Feed temperature T_D (default T_p)"),
-        "end_time": _f("time", "Simulated time of normal operation (default dosing + 2 h)",
+        "end_time": _f("time", "Simulated time of normal operation (default: until at most 0.5 % accumulation is left, up to 72 h)",
                        **POSITIVE),
         "vessel": _f("text", "Name of the vessel to simulate in (default: the last vessel)"),
         "accumulation_limit": _f("number", "Accumulation above which a warning is raised",
