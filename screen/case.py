@@ -618,17 +618,10 @@ EXTRA_CHECKS = (
 
 
 def _run_extra_checks(sections, vessels, path, warnings) -> None:
-    import importlib
+    from screen.hooks import resolve
 
     for target in EXTRA_CHECKS:
-        module_name, function_name = target.split(":")
-        try:
-            module = importlib.import_module(module_name)
-        except ModuleNotFoundError as exc:
-            if exc.name == module_name:
-                continue
-            raise
-        getattr(module, function_name)(sections, vessels, path, warnings)
+        resolve(target)(sections, vessels, path, warnings)
 
 
 def _check_decomposition(decomposition: Section, path: str) -> None:

@@ -112,27 +112,17 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed)
             click.echo(f"\nPDF written to {pdf_path}")
 
 
-def _register_optional_commands():
-    """Attach commands that live in their own modules (kept out of import time cost)."""
-    import importlib
+def _register_commands():
+    """Attach the commands that live in their own modules (their heavy imports stay lazy)."""
+    from screen.hooks import resolve
 
-    for module_name, attribute in (
-        ("screen.cli_report", "report_command"),
-        ("screen.cli_compare", "compare_command"),
-        ("screen.cli_compare", "sweep_command"),
-        ("screen.cli_kinetics", "kinetics_command"),
-        ("screen.cli_batch", "batch_command"),
-    ):
-        try:
-            module = importlib.import_module(module_name)
-        except ModuleNotFoundError as exc:
-            if exc.name == module_name:
-                continue
-            raise
-        main.add_command(getattr(module, attribute))
+    for target in ("screen.cli_report:report_command", "screen.cli_compare:compare_command",
+                   "screen.cli_compare:sweep_command", "screen.cli_kinetics:kinetics_command",
+                   "screen.cli_batch:batch_command"):
+        main.add_command(resolve(target))
 
 
-_register_optional_commands()
+_register_commands()
 
 if __name__ == "__main__":  # pragma: no cover
     main()

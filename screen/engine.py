@@ -420,19 +420,12 @@ FEATURES = (
 
 
 def _add_features(case, result, curves: bool) -> None:
-    import importlib
+    from screen.hooks import resolve
 
     for section, target in FEATURES:
         if section is not None and section not in case.sections:
             continue
-        module_name, function_name = target.split(":")
-        try:
-            module = importlib.import_module(module_name)
-        except ModuleNotFoundError as exc:
-            if exc.name == module_name:
-                continue
-            raise
-        getattr(module, function_name)(case, result, curves=curves)
+        resolve(target)(case, result, curves=curves)
 
 
 def maximum_technical_temperature(case, methods, warnings) -> float:
