@@ -1,0 +1,180 @@
+"""``runaway-screen batch``: screen a portfolio of case files and write one table.
+
+Only click is imported at module level: :mod:`screen.cli` imports this module while it builds
+the command group; :mod:`screen.cli`, pandas and the engine are imported inside the command.
+
+Exit status: 0 when every case was screened; 1 when some rows carry an error (0 with
+``--allow-errors``); 2 for bad arguments (no case files found, a path that does not exist, an
+output that exists without ``--force``, an unusable ``--scheduler``).
+"""
+
+from __future__ import annotations
+
+import click
+
+EXIT_ROWS_WITH_ERRORS = 1
+
+
+def _connect_scheduler(address):
+    """A dask.distributed Client for ``address`` (optional extra ``runaway-screen[cluster]``)."""
+    from screen.errors import CaseError
+
+    try:
+        from dask.distributed import Client
+    except ImportError:
+        raise CaseError("dask.distributed is not installed; install the optional extra with "
+                        "pip install 'runaway-screen[cluster]' or leave out --scheduler",
+                        "--scheduler") from None
+    try:
+        return Client(address, timeout="10s")
+    except Exception as exc:  # OSError, TimeoutError, ValueError for a bad address ...
+        raise CaseError(f"cannot connect to the scheduler at {address!r} ({type(exc).__name__}: "
+                        f"{exc}); give the address as tcp://HOST:PORT", "--scheduler") from None
+
+
+def _json_rows(frame):
+    import math
+
+    rows = []
+    for record in frame.astype(object).to_dict("records"):
+        clean = {}
+        for key, value in record.items():
+            if value is None or (isinstance(value, float) and not math.isfinite(value)):
+                clean[key] = None
+            elif hasattr(value, "item") and not isinstance(value, (str, bytes)):
+                clean[key] = value.item()  # numpy scalar
+            else:
+                try:
+                    missing = value != value  # pandas.NA and NaN
+                    clean[key] = None if missing is True else value
+                except TypeError:
+                    clean[key] = None
+        rows.append(clean)
+    return rows
+
+
+def format_portfolio(frame, files_count: int) -> str:
+    """Plain-text table of a portfolio (one line per row, errors in full below)."""
+    from screen.cautions import SHORT_CAUTION
+
+    errors = frame[frame["error"].notna()]
+    lines = [f"Portfolio screening: {files_count} case files, {len(frame)} rows, "
+             f"{len(errors)} with errors", ""]
+    lines.append(f"{'file':<28}{'vessel':<20}{'class':>5}{'MTSR':>7}{'TD24':>7}"
+                 f"{'TMRad h':>10}  {'vessel status':<12}")
+
+    def cell(value, fmt):
+        if value is None or value != value:  # None, NaN, pandas.NA
+            return "-"
+        return format(value, fmt)
+
+    for _, row in frame.iterrows():
+        name = str(row["file"]).replace("\\", "/").rsplit("/", 1)[-1]
+        vessel = row["vessel"] if isinstance(row["vessel"], str) else "-"
+        if isinstance(row["error"], str) and not isinstance(row["title"], str):
+            lines.append(f"{name[:27]:<28}ERROR (see below)")
+            continue
+        klass = row["criticality_class"]
+        klass_text = "-" if klass is None or klass != klass else str(int(klass))
+        tmr = row["tmrad_at_mtsr_h"]
+        tmr_text = cell(tmr, ".3g") if tmr is None or tmr != tmr or tmr < 1e5 else f"{tmr:.1e}"
+        status = row["vessel_stability"] if isinstance(row["vessel_stability"], str) else "-"
+        flag = "  ERROR" if isinstance(row["error"], str) else ""
+        lines.append(f"{name[:27]:<28}{vessel[:19]:<20}{klass_text:>5}"
+                     f"{cell(row['mtsr_degC'], '.1f'):>7}{cell(row['td24_degC'], '.1f'):>7}"
+                     f"{tmr_text:>10}  {status:<12}{flag}")
+    if len(errors):
+        lines += ["", "Errors"]
+        for _, row in errors.iterrows():
+            lines.append(f"  {row['error']}")
+    classes = frame.drop_duplicates("file")["criticality_class"].dropna()
+    if len(classes):
+        counts = classes.astype(int).value_counts().sort_index()
+        lines += ["", "Cases per class: " + ", ".join(f"class {k}: {v}"
+                                                     for k, v in counts.items())]
+    lines += ["", "(MTSR and TD24 in degC)", SHORT_CAUTION]
+    return "\n".join(lines)
+
+
+@click.command("batch")
+@click.argument("paths", nargs=-1, required=True, type=click.Path(), metavar="DIR-or-FILES...")
+@click.option("--csv", "csv_path", type=click.Path(dir_okay=False), default=None,
+              metavar="OUT.csv", help="Write the table as CSV (one row per case and vessel).")
+@click.option("--workers", type=click.IntRange(min=1), default=None, metavar="N",
+              help="Worker processes (default: number of CPUs; 1 runs in this process).")
+@click.option("--pdf-dir", "pdf_dir", type=click.Path(file_okay=False), default=None,
+              metavar="DIR", help="Also write one PDF per case into this existing folder.")
+@click.option("--allow-errors", is_flag=True,
+              help="Exit with status 0 even when some cases could not be screened.")
+@click.option("--json", "as_json", is_flag=True, help="Print the table as JSON records.")
+@click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
+              help="What-if override applied to every case. Repeatable.")
+@click.option("--recursive", "-r", is_flag=True, help="Search directories recursively.")
+@click.option("--force", is_flag=True, help="Overwrite an existing CSV file and PDFs.")
+@click.option("--scheduler", default=None, metavar="ADDRESS",
+              help="Run the cases on a dask.distributed cluster (tcp://HOST:PORT); needs "
+                   "pip install 'runaway-screen[cluster]'.")
+def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, overrides,
+                  recursive, force, scheduler):
+    """Screen many case files in parallel; one table row per case and vessel.
+
+    DIR-or-FILES are case files or folders of *.toml case files. A case that cannot be
+    screened gives a row with its error and never stops the batch. Exit status: 0 all cases
+    screened; 1 some rows have errors (0 with --allow-errors); 2 bad arguments.
+    """
+    from screen.cli import handle_errors
+
+    @handle_errors
+    def run():
+        import json
+        import os
+        import sys
+
+        from screen.cautions import CAUTIONS
+        from screen.cli import timestamp
+        from screen.errors import CaseError
+        from screen.fileio import check_writable, write_atomic
+        from screen.portfolio import collect_case_files, screen_portfolio
+
+        for item in paths:
+            if not os.path.exists(item):
+                raise CaseError("does not exist; give case files or folders of case files",
+                                path=item)
+        files = collect_case_files(paths, recursive=recursive)
+        if not files:
+            raise CaseError("no case files (*.toml) found in " + ", ".join(paths)
+                            + ("" if recursive else "; use --recursive for subfolders"))
+        if scheduler and workers is not None:
+            raise CaseError("give --workers or --scheduler, not both", "--workers")
+        if csv_path:
+            check_writable(csv_path, force)  # fail before the computation, not after it
+        executor = _connect_scheduler(scheduler) if scheduler else None
+        bar = click.progressbar(length=len(files), label="Screening", file=sys.stderr,
+                                show_pos=True)
+        try:
+            with bar:
+                def progress(done, total, path):
+                    bar.update(1)
+
+                frame = screen_portfolio(files, workers=workers, executor=executor,
+                                         overrides=overrides, pdf_dir=pdf_dir, force=force,
+                                         generated_at=timestamp(), progress=progress)
+        finally:
+            if executor is not None:
+                executor.close()
+        if csv_path:
+            write_atomic(csv_path, frame.to_csv(index=False, lineterminator="\n").encode("utf-8"),
+                         force=force)
+        error_count = int(frame["error"].notna().sum())
+        if as_json:
+            payload = {"files": len(files), "rows": _json_rows(frame), "rows_with_errors":
+                       error_count, "csv": csv_path, "cautions": list(CAUTIONS)}
+            click.echo(json.dumps(payload, indent=2, ensure_ascii=False))
+        else:
+            click.echo(format_portfolio(frame, len(files)))
+            if csv_path:
+                click.echo(f"\nCSV written to {csv_path}")
+        if error_count and not allow_errors:
+            sys.exit(EXIT_ROWS_WITH_ERRORS)
+
+    run()

@@ -1,0 +1,1578 @@
+"""Monte Carlo propagation of input uncertainties to the screening figures and the verdict.
+
+Where uncertainties come from
+-----------------------------
+* A standard uncertainty written inside a value, ``"135 ± 8 kJ/mol"`` or ``"135 +/- 8 kJ/mol"``
+  (parsed by :mod:`screen.units`, kept in ``case.uncertainties``): a normal distribution about
+  the value.
+* The free-form ``[uncertainty]`` section, one quoted key path per uncertain input::
+
+      [uncertainty]
+      "decomposition.activation_energy" = "normal 8 kJ/mol"
+      "decomposition.reference_rate" = "lognormal factor 2"
+      "mass.specific_heat" = "uniform 1.75 .. 1.95 kJ/(kg K)"
+      "process.temperature" = "triangular 58 .. 60 .. 65 degC"
+      "vessel.coolant_temperature" = "normal 3 K"
+      arrhenius_correlation = 0.97
+
+  The words are described in ``docs/uncertainty.md`` and validated by :func:`check_case`
+  (called by :mod:`screen.case` while a case is loaded).
+
+What is computed
+----------------
+Each uncertain input is drawn as given while every other input keeps its case value. An
+uncertain activation energy keeps a measured ``reference_rate`` fixed at its
+``reference_temperature`` (the pre-exponential factor is rebuilt per sample); with a
+``pre_exponential_factor`` instead, ln A is held or varied with the stated correlation to E
+(normal-to-anything transformation of correlated standard normals). For every sample the
+figures of the scalar engine are recomputed, vectorised over the samples: MTSR, TD24 (root
+finding on the exact adiabatic time), TMRad at MTSR, the criticality class, the severity and
+probability levels, and for every vessel the Semenov critical coolant temperature (vectorised
+Newton on ln q(T) - 2 ln T = ln(U A R/(m E))) and whether MTSR lies at or above the
+temperature of no return.
+
+Fail closed: a sample without a TD24 in the searched range counts as class 5, a sample whose
+TMRad is undefined counts as "frequent", and a vessel sample whose heat balance is undefined
+counts as "no stable point"; the counts are reported.
+
+References
+----------
+JCGM 100:2008, Evaluation of measurement data - Guide to the expression of uncertainty in
+measurement (GUM), sections 4.3.7 and 4.3.9 (rectangular and triangular distributions) and 5.1
+(first-order propagation). JCGM 101:2008, Supplement 1 to the GUM - Propagation of
+distributions using a Monte Carlo method. C. Spearman, "The proof and measurement of association
+between two things", Am. J. Psychol. 15 (1904) 72-101 (rank correlation). M. C. Cario,
+B. L. Nelson, "Modeling and generating random vectors with arbitrary marginal distributions and
+correlation matrix", Northwestern Univ. technical report 1997 (normal-to-anything; from memory).
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import re
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR, ZERO_CELSIUS
+from screen.errors import CaseError, SolverError
+
+__all__ = [
+    "PROPAGATED_KEYS",
+    "VESSEL_KEYS",
+    "Marginal",
+    "UncertainInput",
+    "MonteCarloRun",
+    "check_case",
+    "parse_distribution",
+    "collect_inputs",
+    "draw_samples",
+    "critical_coolant_temperature",
+    "mtsr_at_or_above_no_return",
+    "evaluate_figures",
+    "sampled_kinetics",
+    "run_monte_carlo",
+    "add_uncertainty",
+    "average_ranks",
+    "rank_correlation",
+]
+
+#: Key of the [uncertainty] section that correlates E with ln A.
+CORRELATION_KEY = "arrhenius_correlation"
+
+#: Inputs outside [vessel] that the Monte Carlo propagates.
+PROPAGATED_KEYS = (
+    "mass.amount",
+    "mass.specific_heat",
+    "process.temperature",
+    "process.accumulation",
+    "process.accumulation_mass_ratio",
+    "process.max_technical_temperature",
+    "synthesis.energy",
+    "synthesis.molar_enthalpy",
+    "synthesis.limiting_amount",
+    "decomposition.energy",
+    "decomposition.activation_energy",
+    "decomposition.reference_rate",
+    "decomposition.reference_temperature",
+    "decomposition.pre_exponential_factor",
+    "decomposition.order",
+    "decomposition.autocatalytic_order",
+    "decomposition.initial_conversion",
+    "decomposition.onset_temperature",
+)
+
+#: Vessel inputs the Monte Carlo propagates (as vessel.KEY or vessel.N.KEY).
+VESSEL_KEYS = ("batch_mass", "heat_transfer_area", "heat_transfer_coefficient",
+               "coolant_temperature", "heat_losses", "ambient_temperature")
+
+DISTRIBUTIONS = ("normal", "lognormal", "uniform", "triangular")
+
+#: Largest share of a normal or lognormal distribution allowed outside the domain of the input;
+#: the rest is cut off (truncated distribution). Above it the distribution does not describe
+#: the input (design).
+MAX_OUTSIDE_FRACTION = 0.01
+
+MIN_SAMPLES = 10
+MAX_SAMPLES = 5_000_000
+#: Samples evaluated per block: bounds the memory and paces the progress bar.
+CHUNK_SAMPLES = 10_000
+#: Relative agreement required between the vectorised nominal figures and the scalar engine.
+NOMINAL_TOLERANCE = 1e-6
+
+_EXAMPLES = ('"normal 8 kJ/mol" (standard deviation about the case value), "normal 5 %" '
+             '(relative), "lognormal factor 2", "uniform 120 .. 150 kJ/mol", '
+             '"triangular 120 .. 135 .. 150 kJ/mol"')
+
+
+# ----------------------------------------------------------------------------------------------
+# Distributions
+# ----------------------------------------------------------------------------------------------
+
+def _normal_cdf(x: float) -> float:
+    return 0.5 * math.erfc(-x / math.sqrt(2.0))
+
+
+@dataclass(frozen=True)
+class Marginal:
+    """Distribution of one input value (SI).
+
+    ``kind`` and ``parameters``: normal (mean, standard deviation), lognormal (median, standard
+    deviation of ln x), uniform (low, high), triangular (low, mode, high). ``lower``/``upper``
+    is the domain of the input (None: unbounded); normal and lognormal draws are truncated to it.
+    """
+
+    kind: str
+    parameters: tuple[float, ...]
+    nominal: float
+    lower: float | None = None
+    upper: float | None = None
+    lower_exclusive: bool = False
+    upper_exclusive: bool = False
+
+    def _normal_space(self):
+        """(location, scale, lower, upper) of the underlying normal, bounds in that space."""
+        if self.kind == "normal":
+            mean, sd = self.parameters
+            return mean, sd, self.lower, self.upper
+        median, sigma = self.parameters
+        low = None if self.lower is None or self.lower <= 0.0 else math.log(self.lower)
+        high = None
+        if self.upper is not None:
+            high = -math.inf if self.upper <= 0.0 else math.log(self.upper)
+        return math.log(median), sigma, low, high
+
+    def tail_fractions(self) -> tuple[float, float]:
+        """Probability below the lower and above the upper domain bound."""
+        if self.kind in ("uniform", "triangular"):
+            return 0.0, 0.0
+        location, scale, low, high = self._normal_space()
+        below = 0.0 if low is None else _normal_cdf((low - location) / scale)
+        above = 0.0 if high is None else 1.0 - _normal_cdf((high - location) / scale)
+        return below, above
+
+    def transform(self, standard_normal):
+        """Values with this distribution from standard normal draws (monotone increasing).
+
+        Parameters
+        ----------
+        standard_normal : numpy.ndarray
+            Independent or correlated N(0, 1) draws. [-]
+
+        Returns
+        -------
+        numpy.ndarray
+            Samples of the input. [SI unit of the input]
+        """
+        from scipy.special import ndtr, ndtri
+
+        z = np.asarray(standard_normal, dtype=float)
+        if self.kind in ("normal", "lognormal"):
+            location, scale, _, _ = self._normal_space()
+            below, above = self.tail_fractions()
+            if below > 1e-15 or above > 1e-15:
+                # Truncated: map the uniform of z into [F(low), 1 - above] (inverse CDF method).
+                u = below + (1.0 - below - above) * ndtr(z)
+                x = location + scale * ndtri(u)
+            else:
+                x = location + scale * z
+            values = np.exp(x) if self.kind == "lognormal" else x
+        elif self.kind == "uniform":
+            low, high = self.parameters
+            values = low + (high - low) * ndtr(z)
+        else:
+            low, mode, high = self.parameters
+            u = ndtr(z)
+            split = (mode - low) / (high - low)
+            values = np.where(u < split,
+                              low + np.sqrt(u * (high - low) * (mode - low)),
+                              high - np.sqrt((1.0 - u) * (high - low) * (high - mode)))
+        # Keep rounding at a bound inside the domain (exclusive bounds stay excluded).
+        if self.lower is not None:
+            floor = np.nextafter(self.lower, np.inf) if self.lower_exclusive else self.lower
+            values = np.maximum(values, floor)
+        if self.upper is not None:
+            ceiling = np.nextafter(self.upper, -np.inf) if self.upper_exclusive else self.upper
+            values = np.minimum(values, ceiling)
+        return values
+
+    def describe(self, unit: str) -> str:
+        p = self.parameters
+        if self.kind == "normal":
+            return f"normal, mean {p[0]:.6g} {unit}, standard deviation {p[1]:.4g} {unit}"
+        if self.kind == "lognormal":
+            return f"lognormal, median {p[0]:.6g} {unit}, geometric sd factor {math.exp(p[1]):.4g}"
+        if self.kind == "uniform":
+            return f"uniform {p[0]:.6g} .. {p[1]:.6g} {unit}"
+        return f"triangular {p[0]:.6g} .. {p[1]:.6g} .. {p[2]:.6g} {unit}"
+
+
+@dataclass(frozen=True)
+class UncertainInput:
+    """One uncertain input as written: a key path, its marginal per target, its source.
+
+    ``targets`` are internal key paths (``"vessel.2.coolant_temperature"``); a ``vessel.KEY``
+    written for several vessels has one target per vessel, all driven by the same draw.
+    """
+
+    key: str
+    text: str
+    source: str
+    targets: tuple[str, ...]
+    marginals: tuple[Marginal, ...]
+    unit: str
+
+
+def _field_spec(section: str, name: str):
+    from screen.case import SCHEMA
+
+    return SCHEMA[section][name]
+
+
+def _domain(section: str, name: str):
+    """(lower, upper, lower_exclusive, upper_exclusive) of an input from the case schema."""
+    spec = _field_spec(section, name)
+    lower, upper = spec.minimum, spec.maximum
+    lower_exclusive, upper_exclusive = spec.exclusive_minimum, spec.exclusive_maximum
+    if spec.kind == "temperature":
+        lower, lower_exclusive = 0.0, True
+    if section == "synthesis" and name == "molar_enthalpy":
+        upper, upper_exclusive = 0.0, True  # exothermic: dH_r < 0
+    return lower, upper, lower_exclusive, upper_exclusive
+
+
+def _parse_value(text: str, kind: str, key: str, path):
+    """A quantity of the input's kind in SI (dimensionless: number or percent)."""
+    from screen.units import parse_dimensionless, parse_quantity
+
+    if kind == "number":
+        return parse_dimensionless(text, key, path).value
+    return parse_quantity(text, kind, key, path).value
+
+
+def _parse_spread(text: str, kind: str, nominal: float, key: str, path) -> float:
+    """Standard deviation from 'SD unit' (absolute) or 'P %' (relative to the case value)."""
+    from screen.units import parse_dimensionless, parse_quantity
+
+    stripped = text.strip()
+    if stripped.endswith("%"):
+        number = stripped[:-1].strip()
+        try:
+            fraction = float(number) / 100.0
+        except ValueError:
+            raise CaseError(f"got {text!r}; a relative spread is a number and %, e.g. \"5 %\"",
+                            key, path) from None
+        if not math.isfinite(fraction) or fraction <= 0.0:
+            raise CaseError(f"got {text!r}; the spread must be > 0 %", key, path)
+        if nominal == 0.0:
+            raise CaseError("a relative spread (%) needs a case value other than 0; give the "
+                            "standard deviation with its unit", key, path)
+        return fraction * abs(nominal)
+    if kind == "number":
+        sd = parse_dimensionless(stripped, key, path).value
+    elif kind == "temperature":
+        # A spread of a temperature is a difference: parse it as the ± part of a dummy value so
+        # that "2 degC" and "2 K" both mean 2 K (scale only, no offset).
+        parsed = parse_quantity(f"1000 ± {stripped}", kind, key, path)
+        sd = parsed.std
+    else:
+        sd = parse_quantity(stripped, kind, key, path).value
+    if sd is None or not math.isfinite(sd) or sd <= 0.0:
+        raise CaseError(f"got {text!r}; the standard deviation must be > 0", key, path)
+    return float(sd)
+
+
+def parse_distribution(text, section: str, name: str, nominal: float, key: str,
+                       path=None) -> Marginal:
+    """Parse the words of one ``[uncertainty]`` entry into a :class:`Marginal`.
+
+    Grammar (case-insensitive; see docs/uncertainty.md):
+
+    ``normal SD`` or ``normal P %``
+        Normal about the case value; standard deviation with the unit of the input, or P % of
+        the case value.
+    ``lognormal factor F``
+        Lognormal with the case value as median and geometric standard deviation F > 1
+        (ln x has standard deviation ln F).
+    ``uniform LOW .. HIGH``
+        Rectangular between two bounds; the unit may be written once, after the last bound.
+    ``triangular LOW .. MODE .. HIGH``
+        Triangular with the given mode.
+
+    Parameters
+    ----------
+    text : str
+        The distribution as written.
+    section, name : str
+        Section and field of the input (its kind comes from :data:`screen.case.SCHEMA`).
+    nominal : float
+        Case value of the input. [SI]
+    key : str
+        Key path for error messages.
+    path : str, optional
+        Case file for error messages.
+
+    Returns
+    -------
+    Marginal
+
+    Raises
+    ------
+    CaseError
+        Unknown distribution word, unparsable bound, wrong unit, a range that does not contain
+        the case value, or a distribution that lies largely outside the input's domain.
+    """
+    if not isinstance(text, str):
+        raise CaseError(f"got {text!r}; expected a quoted distribution such as {_EXAMPLES}",
+                        key, path)
+    kind = _field_spec(section, name).kind
+    words = text.strip().split(None, 1)
+    if not words:
+        raise CaseError(f"empty distribution; write e.g. {_EXAMPLES}", key, path)
+    word = words[0].lower()
+    rest = words[1].strip() if len(words) > 1 else ""
+    if word not in DISTRIBUTIONS:
+        hint = difflib.get_close_matches(word, DISTRIBUTIONS, n=1, cutoff=0.6)
+        hint_text = f" (did you mean {hint[0]!r}?)" if hint else ""
+        raise CaseError(f"got {text!r}: unknown distribution {words[0]!r}{hint_text}; accepted: "
+                        f"{', '.join(DISTRIBUTIONS)}, e.g. {_EXAMPLES}", key, path)
+    lower, upper, lower_exclusive, upper_exclusive = _domain(section, name)
+    bounds = dict(lower=lower, upper=upper, lower_exclusive=lower_exclusive,
+                  upper_exclusive=upper_exclusive)
+    if word == "normal":
+        if not rest or ".." in rest:
+            raise CaseError(f"got {text!r}; write normal SD (standard deviation about the case "
+                            f"value, e.g. \"normal 8 kJ/mol\" or \"normal 5 %\")", key, path)
+        sd = _parse_spread(rest, kind, nominal, key, path)
+        marginal = Marginal("normal", (float(nominal), sd), float(nominal), **bounds)
+    elif word == "lognormal":
+        match = re.fullmatch(r"factor\s+(\S+)", rest, re.IGNORECASE)
+        try:
+            factor = float(match.group(1)) if match else float("nan")
+        except ValueError:
+            factor = float("nan")
+        if not (factor > 1.0 and math.isfinite(factor)):
+            raise CaseError(f"got {text!r}; write lognormal factor F with F > 1, e.g. "
+                            f"\"lognormal factor 2\" (the case value is the median)", key, path)
+        if not nominal > 0.0:
+            raise CaseError(f"a lognormal distribution needs a positive case value, got "
+                            f"{nominal:.6g}", key, path)
+        marginal = Marginal("lognormal", (float(nominal), math.log(factor)), float(nominal),
+                            **bounds)
+    else:
+        parts = [p.strip() for p in rest.split("..")]
+        expected = 2 if word == "uniform" else 3
+        if len(parts) != expected or not all(parts):
+            form = "LOW .. HIGH" if word == "uniform" else "LOW .. MODE .. HIGH"
+            example = ("uniform 120 .. 150 kJ/mol" if expected == 2
+                       else "triangular 120 .. 135 .. 150 kJ/mol")
+            raise CaseError(f"got {text!r}; write {word} {form}, e.g. {example}", key, path)
+        unit_match = re.match(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*(.*)$", parts[-1])
+        unit = unit_match.group(1).strip() if unit_match else ""
+        values = []
+        for part in parts:
+            bare = re.fullmatch(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?", part)
+            written = f"{part} {unit}" if bare and unit else part
+            values.append(_parse_value(written, kind, key, path))
+        if word == "uniform":
+            low, high = values
+            if not low < high:
+                raise CaseError(f"got {text!r}; LOW must be below HIGH", key, path)
+            params = (low, high)
+        else:
+            low, mode, high = values
+            if not (low <= mode <= high and low < high):
+                raise CaseError(f"got {text!r}; need LOW <= MODE <= HIGH and LOW < HIGH",
+                                key, path)
+            params = (low, mode, high)
+        if not low <= nominal <= high:
+            raise CaseError(f"got {text!r}; the range must contain the case value "
+                            f"({nominal:.6g} in SI), which the nominal screening uses", key, path)
+        if lower is not None and (low < lower or (lower_exclusive and low == lower)):
+            raise CaseError(f"got {text!r}; the range reaches below the smallest allowed value "
+                            f"{lower:g} (SI) of this input", key, path)
+        if upper is not None and (high > upper or (upper_exclusive and high == upper)):
+            raise CaseError(f"got {text!r}; the range reaches above the largest allowed value "
+                            f"{upper:g} (SI) of this input", key, path)
+        marginal = Marginal(word, params, float(nominal), **bounds)
+    _check_tails(marginal, text, key, path)
+    return marginal
+
+
+def _check_tails(marginal: Marginal, text: str, key: str, path) -> None:
+    below, above = marginal.tail_fractions()
+    if below + above > MAX_OUTSIDE_FRACTION:
+        raise CaseError(
+            f"got {text!r}: {100 * (below + above):.1f} % of this distribution lies outside the "
+            f"allowed range of the input (more than {100 * MAX_OUTSIDE_FRACTION:g} % would be cut "
+            f"off); give a smaller spread, a lognormal or a uniform range", key, path)
+
+
+# ----------------------------------------------------------------------------------------------
+# Case validation and collection of the uncertain inputs
+# ----------------------------------------------------------------------------------------------
+
+def _flatten(table: dict, prefix: str = "") -> list[tuple[str, Any]]:
+    """Key paths of a (possibly nested, from unquoted dotted TOML keys) table."""
+    items = []
+    for name, value in table.items():
+        path = f"{prefix}.{name}" if prefix else str(name)
+        if isinstance(value, dict):
+            items.extend(_flatten(value, path))
+        else:
+            items.append((path, value))
+    return items
+
+
+def _supported_list() -> str:
+    return ", ".join(PROPAGATED_KEYS) + ", vessel[.N]." + ", vessel[.N].".join(VESSEL_KEYS)
+
+
+def _resolve(key: str, sections, vessels, path, error_key: str):
+    """(section, name, targets, nominal values) of a key path; CaseError if not usable."""
+    parts = key.split(".")
+    if parts[0] == "vessel":
+        if not vessels:
+            raise CaseError("the case has no [vessel]; remove this entry or add the vessel",
+                            error_key, path)
+        if len(parts) == 2:
+            indices = list(range(len(vessels)))
+            name = parts[1]
+        elif len(parts) == 3:
+            try:
+                number = int(parts[1])
+            except ValueError:
+                number = 0
+            if not 1 <= number <= len(vessels):
+                raise CaseError(f"vessel number {parts[1]!r} does not exist (the case has "
+                                f"{len(vessels)}); write vessel.KEY (every vessel) or vessel.N.KEY "
+                                f"with N = 1 .. {len(vessels)} in file order", error_key, path)
+            indices = [number - 1]
+            name = parts[2]
+        else:
+            raise CaseError("a vessel key path is vessel.KEY (every vessel) or vessel.N.KEY",
+                            error_key, path)
+        if name not in VESSEL_KEYS:
+            hint = difflib.get_close_matches(name, VESSEL_KEYS, n=1, cutoff=0.6)
+            hint_text = f" (did you mean {hint[0]!r}?)" if hint else ""
+            raise CaseError(f"vessel input {name!r} is not propagated by the Monte Carlo"
+                            f"{hint_text}; uncertain vessel inputs can be: "
+                            f"{', '.join(VESSEL_KEYS)}", error_key, path)
+        nominal = []
+        for index in indices:
+            value = vessels[index].get(name)
+            if value is None:
+                raise CaseError(f"{name} is not given for vessel {index + 1} "
+                                f"({vessels[index].name}); give its value in [vessel] first (the "
+                                f"distribution describes the uncertainty of a given value)",
+                                error_key, path)
+            nominal.append(float(value))
+        targets = tuple(f"vessel.{index + 1}.{name}" for index in indices)
+        return "vessel", name, targets, tuple(nominal)
+    if len(parts) != 2 or key not in PROPAGATED_KEYS:
+        hint = difflib.get_close_matches(key, list(PROPAGATED_KEYS), n=1, cutoff=0.6)
+        hint_text = f" (did you mean {hint[0]!r}?)" if hint else ""
+        raise CaseError(f"unknown or not propagated key path {key!r}{hint_text}; uncertain "
+                        f"inputs can be: {_supported_list()}, and {CORRELATION_KEY}; quote the "
+                        f"key, e.g. \"decomposition.activation_energy\" = \"normal 8 kJ/mol\"",
+                        error_key, path)
+    section, name = parts
+    table = sections.get(section)
+    if table is None or not table.given(name):
+        raise CaseError(f"{key} is not given in the case; give its value in [{section}] first "
+                        f"(the distribution describes the uncertainty of a given value)",
+                        error_key, path)
+    if key == "decomposition.onset_temperature" and table.model is not None:
+        raise CaseError("onset_temperature is information only when kinetics are given: its "
+                        "uncertainty changes no figure; remove this entry", error_key, path)
+    return section, name, (key,), (float(table.get(name)),)
+
+
+def _section_entries(sections, vessels, path):
+    """Parsed ``[uncertainty]`` entries: (list of UncertainInput, correlation or None)."""
+    table = sections.get("uncertainty")
+    if table is None:
+        return [], None
+    entries, correlation = [], None
+    seen: dict[str, str] = {}
+    for key, value in _flatten(table.as_dict()):
+        error_key = f"uncertainty.{key}"
+        if key == CORRELATION_KEY:
+            if isinstance(value, bool) or not isinstance(value, (int, float)) or \
+                    not math.isfinite(float(value)) or not -1.0 <= float(value) <= 1.0:
+                raise CaseError(f"got {value!r}; {CORRELATION_KEY} is the correlation "
+                                f"coefficient of E and ln A, a number in [-1, 1] (fitted values "
+                                f"are typically +0.9 to +0.999)", error_key, path)
+            correlation = float(value)
+            continue
+        section, name, targets, nominals = _resolve(key, sections, vessels, path, error_key)
+        for target in targets:
+            if target in seen:
+                raise CaseError(f"{target} is already made uncertain by {seen[target]!r}; give "
+                                f"each input one distribution", error_key, path)
+            seen[target] = key
+        marginals = tuple(parse_distribution(value, section, name, nominal, error_key, path)
+                          for nominal in nominals)
+        unit = _unit_of(section, name)
+        entries.append(UncertainInput(key, str(value), "[uncertainty]", targets, marginals,
+                                      unit))
+    if correlation is not None:
+        dec = sections.get("decomposition")
+        if dec is None or not dec.given("pre_exponential_factor"):
+            raise CaseError(
+                f"{CORRELATION_KEY} correlates E with ln A and needs pre_exponential_factor in "
+                f"[decomposition]; with reference_rate and reference_temperature the rate at "
+                f"the reference temperature is held when E varies, which already expresses the "
+                f"strong E - ln A correlation of a fit: remove {CORRELATION_KEY}",
+                f"uncertainty.{CORRELATION_KEY}", path)
+    return entries, correlation
+
+
+def _unit_of(section: str, name: str) -> str:
+    from screen.units import DIMENSIONS
+
+    kind = _field_spec(section, name).kind
+    return DIMENSIONS[kind][1] if kind in DIMENSIONS else "1"
+
+
+def check_case(sections, vessels, path, warnings) -> None:
+    """Validate the ``[uncertainty]`` section of a case (called by :mod:`screen.case`).
+
+    Parameters
+    ----------
+    sections : dict of screen.case.Section
+        Validated sections of the case (SI values).
+    vessels : sequence of screen.case.Section
+        Validated vessels.
+    path : str
+        Case file, for error messages.
+    warnings : list of str
+        Warnings of the case (appended to).
+
+    Raises
+    ------
+    CaseError
+        Unknown or unsupported key path, an input not given in the case, bad distribution
+        words or units, a range not containing the case value, a distribution largely outside
+        the input's domain, or a misplaced ``arrhenius_correlation``; the message names the key
+        path and the fix.
+    """
+    _, correlation = _section_entries(sections, vessels, path)
+    if correlation is not None and correlation < 0.0:
+        warnings.append(
+            f"uncertainty.{CORRELATION_KEY} = {correlation:g} is negative: activation energies "
+            f"and ln A fitted to the same data are normally positively correlated (compensation "
+            f"effect); check the sign (the intercept and the slope -E/R of an Arrhenius plot are "
+            f"negatively correlated).")
+
+
+def collect_inputs(case):
+    """All uncertain inputs of a case: ``[uncertainty]`` entries and values written with ±.
+
+    Parameters
+    ----------
+    case : screen.case.Case
+        A validated case.
+
+    Returns
+    -------
+    inputs : list of UncertainInput
+        Sorted by key path (the draw order, so the file order does not change the numbers).
+    correlation : float or None
+        Correlation coefficient of E and ln A, if given.
+    not_propagated : list of str
+        Key paths written with ± that the Monte Carlo does not vary.
+
+    Raises
+    ------
+    CaseError
+        As :func:`check_case`; an input given both with ± and in ``[uncertainty]``; an
+        ``arrhenius_correlation`` without uncertain E and A.
+    """
+    path = case.path
+    sections, vessels = case.sections, case.vessels
+    entries, correlation = _section_entries(sections, vessels, path)
+    taken = {target: entry.key for entry in entries for target in entry.targets}
+    not_propagated = []
+    single_vessel = len(vessels) == 1
+    for key, parsed in sorted(case.uncertainties.items()):
+        if parsed.std is None or parsed.std == 0.0:
+            continue
+        parts = key.split(".")
+        if parts[0] == "vessel":
+            name = parts[-1]
+            index = 1 if single_vessel else int(parts[1])
+            target = f"vessel.{index}.{name}"
+            section = "vessel"
+            supported = name in VESSEL_KEYS
+        else:
+            section, name = parts[0], parts[-1]
+            target = key
+            supported = key in PROPAGATED_KEYS and not (
+                key == "decomposition.onset_temperature"
+                and sections["decomposition"].model is not None)
+        if not supported:
+            not_propagated.append(key)
+            continue
+        if target in taken:
+            raise CaseError(f"{key} carries an uncertainty in its value (±) and in [uncertainty] "
+                            f"({taken[target]!r}); give one of them", key, path)
+        lower, upper, lower_exclusive, upper_exclusive = _domain(section, name)
+        marginal = Marginal("normal", (parsed.value, parsed.std), parsed.value, lower, upper,
+                            lower_exclusive, upper_exclusive)
+        _check_tails(marginal, parsed.text, key, path)
+        entries.append(UncertainInput(key, parsed.text, "value ± standard uncertainty",
+                                      (target,), (marginal,), parsed.si_unit))
+        taken[target] = key
+    entries.sort(key=lambda entry: entry.key)
+    if correlation is not None:
+        names = {target for entry in entries for target in entry.targets}
+        for needed in ("decomposition.activation_energy", "decomposition.pre_exponential_factor"):
+            if needed not in names:
+                raise CaseError(f"{CORRELATION_KEY} needs uncertainties on both activation_energy "
+                                f"and pre_exponential_factor; {needed} has none",
+                                f"uncertainty.{CORRELATION_KEY}", path)
+    return entries, correlation, not_propagated
+
+
+def draw_samples(inputs, samples: int, seed: int, correlation=None):
+    """Samples of every target of the uncertain inputs.
+
+    One row of independent standard normals per input, drawn in the order of ``inputs`` from
+    ``numpy.random.default_rng(seed)``; the E - ln A correlation is imposed on the two rows by
+    z_A <- rho z_E + sqrt(1 - rho^2) z_A (a Gaussian copula; exact correlation of E and ln A
+    when both are normal or lognormal); each row then passes through the input's marginal
+    (inverse CDF of Phi(z)).
+
+    Parameters
+    ----------
+    inputs : list of UncertainInput
+        From :func:`collect_inputs`.
+    samples : int
+        Number of samples. [-]
+    seed : int
+        Seed of the random generator (>= 0). [-]
+    correlation : float, optional
+        Correlation of E and ln A. [-]
+
+    Returns
+    -------
+    values : dict
+        Target key path -> array of ``samples`` values. [SI unit of the input]
+    by_input : dict
+        Input key as written -> the array of its first target (for the sensitivity ranking).
+        [SI unit of the input]
+    """
+    rng = np.random.default_rng(seed)
+    normals = rng.standard_normal((len(inputs), samples))
+    if correlation is not None:
+        rows = {target: index for index, entry in enumerate(inputs) for target in entry.targets}
+        row_e = rows["decomposition.activation_energy"]
+        row_a = rows["decomposition.pre_exponential_factor"]
+        normals[row_a] = (correlation * normals[row_e]
+                          + math.sqrt(max(0.0, 1.0 - correlation ** 2)) * normals[row_a])
+    values: dict[str, np.ndarray] = {}
+    by_input: dict[str, np.ndarray] = {}
+    for index, entry in enumerate(inputs):
+        for number, (target, marginal) in enumerate(zip(entry.targets, entry.marginals,
+                                                         strict=True)):
+            array = marginal.transform(normals[index])
+            values[target] = array
+            if number == 0:
+                by_input[entry.key] = array
+    return values, by_input
+
+
+# ----------------------------------------------------------------------------------------------
+# Vectorised figures
+# ----------------------------------------------------------------------------------------------
+
+def critical_coolant_temperature(kinetics, mass, ua, conversion=None):
+    """Semenov critical point of a cooled vessel for many samples (vectorised).
+
+    The tangency temperature T* solves ``m q(T*) = U A R T*^2/E`` on the branch T < E/(2 R),
+    i.e. in y = 1/T
+
+        G(y) = c - (E/R) y + 2 ln y - ln(U A R/(m E)) = 0,    c = ln q(T) + E/(R T),
+
+    where q is the heat release rate of ``kinetics`` at a fixed conversion (zero order, no
+    consumption: the screening convention of the vessel balance). G is concave and
+    falls for y > 2 R/E, so Newton steps started at the low-temperature end (y = 1000 * 2R/E,
+    where G < 0) decrease monotonically to the root. Then T_c,crit = T* - R T*^2/E
+    (derived; Semenov, Z. Phys. 48 (1928) 571; construction as in Williams, Combustion Theory,
+    2nd ed. 1985, app. B).
+
+    Parameters
+    ----------
+    kinetics : screen.models.decomposition.DecompositionKinetics
+        Decomposition kinetics (array fields allowed).
+    mass : float or array
+        Reaction mass in the vessel. [kg]
+    ua : float or array
+        Effective U A of the vessel (jacket plus losses). [W/K]
+    conversion : float or array, optional
+        Conversion at which the rate is frozen. [-] None: the mass as fed (a0).
+
+    Returns
+    -------
+    tangency_temperature : numpy.ndarray
+        T*. [K] NaN where the scalar engine raises (no tangency below E/(2 R), or the vessel is
+        supercritical even at E/(2 R) * 1e-3).
+    critical_coolant_temperature : numpy.ndarray
+        T_c,crit. [K] NaN likewise.
+    """
+    e = np.asarray(kinetics.activation_energy, dtype=float)
+    probe = 400.0
+    log_rate_probe = np.asarray(kinetics.log_heat_release_rate(probe, conversion), dtype=float)
+    shape = np.broadcast_shapes(e.shape, log_rate_probe.shape, np.shape(mass), np.shape(ua))
+    e = np.broadcast_to(e, shape)
+    e_over_r = e / GAS_CONSTANT
+    intercept = np.broadcast_to(log_rate_probe + e_over_r / probe, shape)
+    target = np.broadcast_to(np.log(np.asarray(ua, dtype=float) * GAS_CONSTANT
+                                    / (np.asarray(mass, dtype=float) * e)), shape)
+
+    def g(y):
+        return intercept - e_over_r * y + 2.0 * np.log(y) - target
+
+    y_peak = 2.0 / e_over_r               # T = E/(2 R): maximum of G
+    y_start = 1000.0 * y_peak             # T = E/(2 R) * 1e-3: the scalar engine's lower end
+    defined = (g(y_peak) > 0.0) & (g(y_start) < 0.0)
+    y = np.where(defined, y_start, y_peak)
+    for _ in range(100):
+        step = g(y) / (-e_over_r + 2.0 / y)
+        y = np.where(defined, y - step, y)
+        if np.all(np.abs(step[defined]) <= 1e-15 * y[defined]):
+            break
+    tangency = np.where(defined, 1.0 / y, np.nan)
+    critical = tangency - tangency ** 2 / e_over_r
+    return tangency, np.where(defined, critical, np.nan)
+
+
+def mtsr_at_or_above_no_return(kinetics, mass, ua, coolant_temperature, mtsr, conversion=None):
+    """Whether MTSR reaches the temperature of no return (vectorised, fail closed).
+
+    With f(T) = ln(m q(T)) - ln(U A (T - T_c)) and the tangency roots T_low < T_high of
+    E (T - T_c) = R T^2: no operating point exists when f(T_low) >= 0; otherwise the
+    temperature of no return T_NR is the single root of f on (T_low, T_high), where f rises, so
+    MTSR >= T_NR exactly when MTSR >= T_high or (MTSR > T_low and f(MTSR) >= 0) (derived; the
+    scalar engine finds T_NR by brentq on the same function).
+
+    Parameters
+    ----------
+    kinetics : screen.models.decomposition.DecompositionKinetics
+        Decomposition kinetics (its rate at a fixed conversion is used, as in the engine).
+    mass : float or array
+        Reaction mass. [kg]
+    ua : float or array
+        Effective U A. [W/K]
+    coolant_temperature : float or array
+        Effective coolant temperature. [K]
+    mtsr : float or array
+        MTSR. [K]
+    conversion : float or array, optional
+        Conversion at which the rate is frozen. [-] None: the mass as fed (a0).
+
+    Returns
+    -------
+    above : numpy.ndarray of bool
+        True where MTSR >= T_NR or no stable point exists, and where the heat balance is
+        undefined (E <= 4 R T_c, or no T_NR below T_high): fail closed.
+    no_stable_point : numpy.ndarray of bool
+        True where the coolant is at or above its critical temperature (or undefined).
+    undefined : numpy.ndarray of bool
+        True where the scalar engine would raise.
+    """
+    e = np.asarray(kinetics.activation_energy, dtype=float)
+    t_c = np.asarray(coolant_temperature, dtype=float)
+    shape = np.broadcast_shapes(e.shape, t_c.shape, np.shape(mass), np.shape(ua), np.shape(mtsr),
+                                np.shape(kinetics.log_pre_exponential_factor))
+    e = np.broadcast_to(e, shape)
+    t_c = np.broadcast_to(t_c, shape)
+    mtsr = np.broadcast_to(np.asarray(mtsr, dtype=float), shape)
+    log_mass = np.broadcast_to(np.log(np.asarray(mass, dtype=float)), shape)
+    ua = np.broadcast_to(np.asarray(ua, dtype=float), shape)
+    four_epsilon = 4.0 * GAS_CONSTANT * t_c / e
+    sharp = four_epsilon < 1.0
+    root = np.sqrt(np.where(sharp, 1.0 - four_epsilon, 1.0))
+    t_low = 2.0 * t_c / (1.0 + root)
+    t_high = e / GAS_CONSTANT - t_low
+
+    def balance(temperature):
+        temperature = np.where(temperature > t_c, temperature, t_c + 1.0)
+        log_rate = np.asarray(kinetics.log_heat_release_rate(temperature, conversion),
+                              dtype=float)
+        return log_mass + log_rate - np.log(ua * (temperature - t_c))
+
+    with np.errstate(invalid="ignore", divide="ignore"):
+        f_low = balance(np.where(sharp, t_low, t_c + 1.0))
+        f_high = balance(np.where(sharp, t_high, t_c + 2.0))
+        f_mtsr = balance(np.where(mtsr > t_c, mtsr, t_c + 1.0))
+    no_stable = sharp & (f_low >= 0.0)
+    undefined = ~sharp | (~no_stable & ~(f_high > 0.0))
+    above = (no_stable | undefined | (mtsr >= t_high)
+             | ((mtsr > t_low) & (f_mtsr >= 0.0)))
+    return above, no_stable | undefined, undefined
+
+
+@dataclass
+class _Context:
+    """Everything fixed over the samples, read once from the case and the nominal result."""
+
+    mode: str
+    model: str | None
+    reference_form: bool
+    mtt_from_case: bool
+    nominal_mtt: float
+    synthesis_from_energy: bool
+    vessels: list = field(default_factory=list)
+
+
+def _context(case, results) -> tuple[_Context, dict[str, float]]:
+    from screen.vessels import vessel_geometry
+
+    sections = case.sections
+    process, dec, syn = sections["process"], sections["decomposition"], sections["synthesis"]
+    base: dict[str, float] = {}
+    for key in PROPAGATED_KEYS:
+        section, name = key.split(".")
+        table = sections.get(section)
+        if table is not None and table.get(name) is not None:
+            base[key] = float(table.get(name))
+    vessels = []
+    multiple = len(case.vessels) > 1
+    for index, vessel in enumerate(case.vessels, start=1):
+        prefix = f"vessel.{index}" if multiple else "vessel"
+        for name in VESSEL_KEYS:
+            if vessel.get(name) is not None:
+                base[f"vessel.{index}.{name}"] = float(vessel.get(name))
+        _, _, area, _, _ = vessel_geometry(case, vessel, prefix)
+        vessels.append({"index": index, "name": vessel.name, "area": float(area),
+                        "batch_mass": vessel.get("batch_mass") is not None,
+                        "heat_transfer_area": vessel.get("heat_transfer_area") is not None})
+    context = _Context(
+        mode=process.mode,
+        model=dec.model,
+        reference_form=dec.given("reference_rate"),
+        mtt_from_case=process.max_technical_temperature is not None,
+        nominal_mtt=float(results["mtt_degC"]) + ZERO_CELSIUS,
+        synthesis_from_energy=syn.given("energy"),
+        vessels=vessels,
+    )
+    return context, base
+
+
+def _kinetics(values, context):
+    from screen.engine import ONSET_ESTIMATE_ACTIVATION_ENERGY, ONSET_ESTIMATE_DETECTION_LIMIT
+    from screen.models.decomposition import DecompositionKinetics
+
+    energy = values["decomposition.energy"]
+    if context.model is None:
+        return DecompositionKinetics.from_reference_rate(
+            "zero-order", energy, ONSET_ESTIMATE_ACTIVATION_ENERGY,
+            ONSET_ESTIMATE_DETECTION_LIMIT, values["decomposition.onset_temperature"])
+    model = context.model
+    order = values.get("decomposition.order", 1.0 if model == "nth-order" else 0.0)
+    if model == "zero-order":
+        order = 0.0
+    common = dict(order=order,
+                  autocatalytic_order=values.get("decomposition.autocatalytic_order", 0.0),
+                  initial_conversion=values.get("decomposition.initial_conversion", 0.0))
+    if context.reference_form:
+        return DecompositionKinetics.from_reference_rate(
+            model, energy, values["decomposition.activation_energy"],
+            values["decomposition.reference_rate"], values["decomposition.reference_temperature"],
+            **common)
+    return DecompositionKinetics(model=model, energy=energy,
+                                 activation_energy=values["decomposition.activation_energy"],
+                                 pre_exponential_factor=values[
+                                     "decomposition.pre_exponential_factor"], **common)
+
+
+def evaluate_figures(case, results, values=None):
+    """The screening figures for sampled input values, vectorised over the samples.
+
+    Parameters
+    ----------
+    case : screen.case.Case
+        The validated case.
+    results : dict
+        ``ScreeningResult.results`` of the nominal screening (for the MTT, which may come from
+        a solvent boiling point).
+    values : dict, optional
+        Key path (``"decomposition.activation_energy"``, ``"vessel.1.coolant_temperature"``)
+        -> array of samples [SI]; inputs not named keep their case values. None: all nominal.
+
+    Returns
+    -------
+    dict of numpy.ndarray
+        ``mtsr``, ``mtt``, ``td24`` [K] (NaN: no root in 150-1500 K), ``tmrad_at_mtsr`` [s],
+        ``synthesis_rise``, ``decomposition_rise``, ``runaway_rise`` [K],
+        ``process_temperature`` [K], ``criticality_class`` (int; NaN TD24 counted as 5),
+        and per vessel ``vessel.N.critical_coolant_temperature`` [K],
+        ``vessel.N.coolant_margin`` [K], ``vessel.N.no_stable_point``,
+        ``vessel.N.mtsr_above_no_return``, ``vessel.N.undefined`` (bool).
+    """
+    from screen.models import criticality as crit
+    from screen.models import decomposition as dm
+
+    context, base = _context(case, results)
+    merged = dict(base)
+    merged.update(values or {})
+    sizes = {np.size(v) for v in (values or {}).values()}
+    size = max(sizes) if sizes else 1
+    return _compose(merged, context, size, crit, dm)
+
+
+def sampled_kinetics(case, results, values=None):
+    """Decomposition kinetics with array fields for sampled inputs (as the Monte Carlo uses).
+
+    With ``reference_rate`` given, A is rebuilt per sample so that the heat release rate of the
+    fresh mass at ``reference_temperature`` equals the (sampled) reference rate; with
+    ``pre_exponential_factor`` given, the sampled A is used as is.
+
+    Parameters
+    ----------
+    case : screen.case.Case
+        The validated case.
+    results : dict
+        ``results`` of the nominal screening.
+    values : dict, optional
+        Key path -> samples [SI] (see :func:`evaluate_figures`).
+
+    Returns
+    -------
+    screen.models.decomposition.DecompositionKinetics
+    """
+    context, base = _context(case, results)
+    merged = dict(base)
+    merged.update(values or {})
+    return _kinetics(merged, context)
+
+
+def _compose(values, context, size, crit, dm):
+    def full(x):
+        return np.broadcast_to(np.asarray(x, dtype=float), (size,))
+
+    cp = values["mass.specific_heat"]
+    t_p = values["process.temperature"]
+    if context.synthesis_from_energy:
+        q_syn = values["synthesis.energy"]
+    else:
+        q_syn = (-np.asarray(values["synthesis.molar_enthalpy"])
+                 * np.asarray(values["synthesis.limiting_amount"])
+                 / np.asarray(values["mass.amount"]))
+    rise_syn = np.asarray(q_syn) / np.asarray(cp)
+    if context.mode == "semi-batch":
+        accumulation = values["process.accumulation"]
+        ratio = values.get("process.accumulation_mass_ratio", 1.0)
+    else:
+        accumulation = values.get("process.accumulation", 1.0)
+        ratio = 1.0
+    mtsr = full(np.asarray(t_p) + np.asarray(accumulation) * rise_syn / np.asarray(ratio))
+    if context.mtt_from_case:
+        mtt = full(values["process.max_technical_temperature"])
+    else:
+        mtt = full(context.nominal_mtt)
+    kinetics = _kinetics(values, context)
+    rise_dec = full(np.asarray(values["decomposition.energy"]) / np.asarray(cp))
+    with np.errstate(all="ignore"):
+        tmrad_mtsr = full(dm.tmrad(kinetics, mtsr, cp))
+        td24 = full(dm.temperature_for_tmrad(kinetics, cp, 24.0 * SECONDS_PER_HOUR))
+    t_p = full(t_p)
+    klass = np.asarray(crit.criticality_class(t_p, mtsr, mtt, np.where(np.isnan(td24), 0.0,
+                                                                         td24)))
+    klass = np.where(np.isnan(td24), 5, np.broadcast_to(klass, (size,))).astype(int)
+    out = {
+        "process_temperature": t_p,
+        "mtsr": mtsr,
+        "mtt": mtt,
+        "td24": td24,
+        "tmrad_at_mtsr": tmrad_mtsr,
+        "synthesis_rise": full(rise_syn),
+        "decomposition_rise": rise_dec,
+        "runaway_rise": mtsr + rise_dec - t_p,
+        "criticality_class": klass,
+    }
+    # The vessel balance freezes the rate at one conversion (as screen.vessels does): the mass
+    # as fed, or for an autocatalytic decomposition the maximum of a^m (1-a)^n, a* = m/(m+n).
+    conversion = None
+    if kinetics.model == "autocatalytic":
+        m = np.asarray(kinetics.autocatalytic_order, dtype=float)
+        n_order = np.asarray(kinetics.order, dtype=float)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            a_star = np.where(n_order == 0.0, 1.0 - 1e-9, m / (m + n_order))
+        conversion = np.maximum(np.asarray(kinetics.initial_conversion, dtype=float), a_star)
+    for vessel in context.vessels:
+        n = vessel["index"]
+        key = f"vessel.{n}."
+        mass = values[key + "batch_mass"] if vessel["batch_mass"] else values["mass.amount"]
+        area = values[key + "heat_transfer_area"] if vessel["heat_transfer_area"] \
+            else vessel["area"]
+        ua = np.asarray(values[key + "heat_transfer_coefficient"]) * np.asarray(area)
+        t_c = np.asarray(values[key + "coolant_temperature"])
+        losses = values.get(key + "heat_losses")
+        with_losses = losses is not None and bool(np.any(np.asarray(losses) > 0.0))
+        if with_losses:
+            # Losses to ambient fold into one equivalent cooling line (as in screen.vessels).
+            losses = np.asarray(losses)
+            t_amb = np.asarray(values[key + "ambient_temperature"])
+            ua_eff = ua + losses
+            t_c_eff = (ua * t_c + losses * t_amb) / ua_eff
+        else:
+            ua_eff, t_c_eff = ua, t_c
+        with np.errstate(all="ignore"):
+            _, t_c_crit = critical_coolant_temperature(kinetics, mass, ua_eff, conversion)
+            above, no_stable, undefined = mtsr_at_or_above_no_return(
+                kinetics, mass, ua_eff, t_c_eff, mtsr, conversion)
+            if with_losses:
+                # Reported on the coolant side: the jacket temperature at which the equivalent
+                # line is critical.
+                t_c_crit = (ua_eff * t_c_crit - losses * t_amb) / ua
+        t_c_crit = full(t_c_crit)
+        out[key + "critical_coolant_temperature"] = t_c_crit
+        out[key + "coolant_margin"] = t_c_crit - full(t_c)
+        out[key + "mtsr_above_no_return"] = np.broadcast_to(above, (size,))
+        out[key + "no_stable_point"] = np.broadcast_to(no_stable | np.isnan(t_c_crit), (size,))
+        out[key + "undefined"] = np.broadcast_to(undefined | np.isnan(t_c_crit), (size,))
+    return out
+
+
+# ----------------------------------------------------------------------------------------------
+# Statistics
+# ----------------------------------------------------------------------------------------------
+
+def average_ranks(values):
+    """Ranks 1..n of a sample, ties sharing their average rank (as used by Spearman's rho).
+
+    Parameters
+    ----------
+    values : array
+        Sample; ``inf`` ranks at the ends, NaN is not accepted. [any]
+
+    Returns
+    -------
+    numpy.ndarray
+        Ranks. [-]
+    """
+    values = np.asarray(values, dtype=float).ravel()
+    order = np.argsort(values)  # ties get their average rank, so the sort need not be stable
+    ordered = values[order]
+    starts = np.concatenate(([True], ordered[1:] != ordered[:-1]))
+    group = np.cumsum(starts) - 1
+    first = np.flatnonzero(starts)
+    last = np.concatenate((first[1:], [values.size])) - 1
+    ranks = np.empty(values.size)
+    ranks[order] = 0.5 * (first + last)[group] + 1.0
+    return ranks
+
+
+def rank_correlation(x, y):
+    """Spearman rank correlation coefficient of two samples (average ranks for ties).
+
+    rho = Pearson correlation of rank(x) and rank(y) (C. Spearman, Am. J. Psychol. 15 (1904)
+    72-101).
+
+    Parameters
+    ----------
+    x, y : array
+        Samples of equal length, or their ranks from :func:`average_ranks`. ``inf`` ranks at
+        the ends; NaN is not accepted. [any]
+
+    Returns
+    -------
+    float or None
+        rho in [-1, 1]; None when either sample is constant.
+    """
+    return _pearson(average_ranks(x), average_ranks(y))
+
+
+def _pearson(rank_x, rank_y):
+    """Pearson correlation of two rank vectors; None if either is constant."""
+    rank_x = rank_x - rank_x.mean()
+    rank_y = rank_y - rank_y.mean()
+    denominator = math.sqrt(float(np.dot(rank_x, rank_x)) * float(np.dot(rank_y, rank_y)))
+    if denominator == 0.0:
+        return None
+    return float(np.clip(np.dot(rank_x, rank_y) / denominator, -1.0, 1.0))
+
+
+def _spread(values, scale=1.0, offset=0.0, undefined=None):
+    """p5, p50, p95, mean, std of samples; undefined samples rank as the most critical (-inf).
+
+    With any non-finite sample the percentiles use the inverted-CDF definition (no interpolation
+    across infinity) and mean and std are None.
+    """
+    values = np.asarray(values, dtype=float)
+    count_undefined = int(np.count_nonzero(np.isnan(values)))
+    if undefined is not None:
+        values = np.where(np.isnan(values), undefined, values)
+    finite = np.isfinite(values)
+    if finite.all():
+        p5, p50, p95 = np.percentile(values, [5.0, 50.0, 95.0])
+        mean, std = float(values.mean()), float(values.std(ddof=1)) if values.size > 1 else 0.0
+    else:
+        p5, p50, p95 = np.percentile(values, [5.0, 50.0, 95.0], method="inverted_cdf")
+        mean = std = None
+
+    def convert(v):
+        v = float(v)
+        return v / scale - offset if math.isfinite(v) else None
+
+    out = {"p5": convert(p5), "p50": convert(p50), "p95": convert(p95),
+           "mean": None if mean is None else mean / scale - offset,
+           "std": None if std is None else std / scale}
+    if count_undefined:
+        out["undefined_samples"] = count_undefined
+    return out
+
+
+def _fraction(mask, total):
+    return float(np.count_nonzero(mask)) / total
+
+
+def _probability_phrase(label: str, count: int, total: int, equals: str = " = ") -> str:
+    """"label = p" from a count; none or all samples give the 95 % bound of the rule of three.
+
+    With no event in n samples the one-sided 95 % upper bound of its probability is about 3/n
+    (Hanley & Lippman-Hand, "If nothing goes wrong, is everything all right?", JAMA 249 (1983)
+    1743-1745).
+    """
+    if count == 0:
+        return f"{label} < {3.0 / total:.2g} (none of {total} samples, 95 % bound)"
+    if count == total:
+        return f"{label} > {1.0 - 3.0 / total:.4g} (all {total} samples, 95 % bound)"
+    return f"{label}{equals}{_format_probability(count / total)}"
+
+
+def _format_probability(p: float) -> str:
+    if p == 0.0:
+        return "0"
+    if p == 1.0:
+        return "1"
+    if p < 0.001:
+        return f"{p:.1e}"
+    if p > 0.999:  # never round a small remaining risk away
+        return f"{p:.6f}".rstrip("0")
+    return f"{p:.3f}"
+
+
+@dataclass
+class MonteCarloRun:
+    """Samples of the inputs and of the figures (arrays over the samples)."""
+
+    samples: int
+    seed: int
+    inputs: list
+    correlation: float | None
+    not_propagated: list
+    input_values: dict
+    input_by_key: dict
+    figures: dict
+
+
+def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = False,
+                    chunk: int = CHUNK_SAMPLES) -> MonteCarloRun:
+    """Draw the uncertain inputs and evaluate the figures for every sample.
+
+    Parameters
+    ----------
+    case : screen.case.Case
+        The validated case.
+    results : dict
+        ``results`` of the nominal screening of the same case.
+    samples : int
+        Number of samples, 10 .. 5,000,000. [-]
+    seed : int
+        Seed of ``numpy.random.default_rng``, >= 0. [-]
+    progress : bool
+        Show a progress bar on stderr.
+    chunk : int
+        Samples evaluated per block (does not change the numbers). [-]
+
+    Returns
+    -------
+    MonteCarloRun
+
+    Raises
+    ------
+    CaseError
+        Bad sample count or seed, no uncertain input, or an invalid uncertainty entry.
+    """
+    if isinstance(samples, bool) or not isinstance(samples, (int, np.integer)) or \
+            not MIN_SAMPLES <= samples <= MAX_SAMPLES:
+        raise CaseError(f"got {samples!r} samples; give an integer from {MIN_SAMPLES} to "
+                        f"{MAX_SAMPLES:,} (e.g. --uncertainty 20000)", "--uncertainty", case.path)
+    if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
+        raise CaseError(f"got seed {seed!r}; the seed is an integer >= 0", "--seed", case.path)
+    samples, seed = int(samples), int(seed)
+    inputs, correlation, not_propagated = collect_inputs(case)
+    if not inputs:
+        raise CaseError("the case gives no uncertainty to propagate: write a value with its "
+                        "standard uncertainty (\"135 ± 8 kJ/mol\") or add an [uncertainty] "
+                        "section (see docs/uncertainty.md)", "--uncertainty", case.path)
+    input_values, input_by_key = draw_samples(inputs, samples, seed, correlation)
+
+    from screen.models import criticality as crit
+    from screen.models import decomposition as dm
+
+    context, base = _context(case, results)
+    _check_nominal(case, results, context, base, crit, dm)
+    pieces: list[dict] = []
+    starts = range(0, samples, max(1, int(chunk)))
+    bar = None
+    if progress:
+        import sys
+
+        import click
+
+        bar = click.progressbar(length=samples, label="Monte Carlo", file=sys.stderr,
+                                show_percent=True, show_eta=True)
+        bar.__enter__()
+    try:
+        for start in starts:
+            stop = min(samples, start + int(chunk))
+            merged = dict(base)
+            for key, array in input_values.items():
+                merged[key] = array[start:stop]
+            pieces.append(_compose(merged, context, stop - start, crit, dm))
+            if bar is not None:
+                bar.update(stop - start)
+    finally:
+        if bar is not None:
+            bar.__exit__(None, None, None)
+    figures = {key: np.concatenate([piece[key] for piece in pieces]) for key in pieces[0]}
+    return MonteCarloRun(samples, seed, inputs, correlation, not_propagated, input_values,
+                         input_by_key, figures)
+
+
+def _check_nominal(case, results, context, base, crit, dm) -> None:
+    """The vectorised composition must reproduce the scalar engine at the case values."""
+    nominal = _compose(dict(base), context, 1, crit, dm)
+    pairs = [("MTSR", nominal["mtsr"][0] - ZERO_CELSIUS, results["mtsr_degC"]),
+             ("TD24", nominal["td24"][0] - ZERO_CELSIUS, results["td24_degC"]),
+             ("TMRad at MTSR", nominal["tmrad_at_mtsr"][0] / SECONDS_PER_HOUR,
+              results["tmrad_at_mtsr_h"]),
+             ("class", float(nominal["criticality_class"][0]),
+              float(results.get("criticality_class_computed", results["criticality_class"])))]
+    for entry, vessel in zip(results.get("vessels") or [], context.vessels, strict=True):
+        key = f"vessel.{vessel['index']}."
+        pairs.append((f"{vessel['name']}: critical coolant temperature",
+                      nominal[key + "critical_coolant_temperature"][0] - ZERO_CELSIUS,
+                      entry["critical_coolant_temperature_degC"]))
+        pairs.append((f"{vessel['name']}: MTSR above T_NR",
+                      float(nominal[key + "mtsr_above_no_return"][0]),
+                      float(entry["mtsr_above_no_return"])))
+    for name, vector, scalar in pairs:
+        if scalar is None or not math.isfinite(vector) or \
+                abs(vector - scalar) > NOMINAL_TOLERANCE * max(1.0, abs(scalar)):
+            raise SolverError(
+                f"the vectorised Monte Carlo figures do not reproduce the nominal screening "
+                f"({name}: {vector!r} against {scalar!r}); the propagation is not trusted and "
+                f"was not run. This is a bug, please report it with the case file",
+                "--uncertainty", case.path)
+
+
+def add_uncertainty(result, samples: int = 20_000, seed: int = 20261201,
+                    progress: bool = False) -> dict:
+    """Propagate the uncertainties of a case and add ``results["uncertainty"]``.
+
+    Also appends the confidence to ``results["verdict"]``, warnings to ``result.warnings``,
+    the method to ``result.methods["uncertainty"]`` and the sensitivity bars to
+    ``result.curves["uncertainty"]``.
+
+    Parameters
+    ----------
+    result : screen.engine.ScreeningResult
+        The nominal screening of the case (modified in place).
+    samples : int
+        Number of Monte Carlo samples. [-]
+    seed : int
+        Random seed (reported). [-]
+    progress : bool
+        Show a progress bar on stderr.
+
+    Returns
+    -------
+    dict
+        The ``uncertainty`` block (JSON-ready apart from numpy scalars, which the result's
+        JSON export converts).
+
+    Raises
+    ------
+    CaseError
+        See :func:`run_monte_carlo`.
+    SolverError
+        The vectorised figures do not reproduce the nominal screening.
+    """
+    case, results = result.case, result.results
+    run = run_monte_carlo(case, results, samples, seed, progress=progress)
+    block, warnings = summarise(run, case, results)
+    results["uncertainty"] = block
+    results["verdict"] = f"{results['verdict']} {block['confidence']}"
+    result.warnings.extend(warnings)
+    result.methods["uncertainty"] = (
+        "Monte Carlo propagation of distributions (JCGM 101:2008): each uncertain input drawn as "
+        "given, the others at their case values; figures recomputed per sample by the same "
+        "models (vectorised); sensitivity by Spearman rank correlation (Spearman 1904)")
+    ranking = block["sensitivity"]
+    if not isinstance(result.curves, dict):
+        result.curves = {}
+    result.curves["uncertainty"] = {
+        "names": [item["key"] for item in ranking],
+        "values": [item["rank_correlation_onset_margin"] or 0.0 for item in ranking],
+        "values_tmrad": [item["rank_correlation_tmrad_at_mtsr"] or 0.0 for item in ranking],
+        "label": "Spearman rank correlation with the margin TD24 - MTSR [-]",
+    }
+    return block
+
+
+def summarise(run: MonteCarloRun, case, results):
+    """The JSON block and the warnings of a Monte Carlo run (see :func:`add_uncertainty`)."""
+    from screen.models import criticality as crit
+
+    n = run.samples
+    fig = run.figures
+    klass = fig["criticality_class"]
+    counts = np.bincount(klass, minlength=6)[1:6]
+    class_probabilities = {str(k): float(counts[k - 1]) / n for k in range(1, 6)}
+    nominal_class = int(results.get("criticality_class_computed", results["criticality_class"]))
+    crude = results.get("decomposition_basis") == "onset-estimate"
+    most_probable = int(np.argmax(counts)) + 1
+    td24, mtsr, mtt = fig["td24"], fig["mtsr"], fig["mtt"]
+    no_td24 = np.isnan(td24)
+    tmr = fig["tmrad_at_mtsr"]
+    tmr_undefined = np.isnan(tmr)
+    tmr_hours = np.where(tmr_undefined, 0.0, tmr / SECONDS_PER_HOUR)  # fail closed: frequent
+    margin = td24 - mtsr
+    severity_codes = crit.severity_codes(fig["runaway_rise"])
+    severity3 = np.searchsorted(np.array([50.0, 200.0]), fig["runaway_rise"], side="right")
+    probability_codes = crit.probability_codes(tmr_hours)
+    probability3 = np.searchsorted(np.array([8.0, 24.0]), tmr_hours, side="left")
+
+    def level_probabilities(codes, names):
+        tally = np.bincount(codes, minlength=len(names))
+        return {name: float(tally[i]) / n for i, name in enumerate(names)}
+
+    p_class_4_5 = (counts[3] + counts[4]) / n
+    p_td24 = _fraction(no_td24 | (mtsr >= np.where(no_td24, np.inf, td24)), n)
+    p_mtt = _fraction(mtsr >= mtt, n)
+
+    # Sensitivity: rank correlation of each input with the margin and with TMRad at MTSR,
+    # undefined outputs ranked as the most critical.
+    # Ranks of the outputs once; Spearman's rho is the Pearson correlation of the ranks.
+    margin_ranked = average_ranks(np.where(np.isnan(margin), -np.inf, margin))
+    tmr_ranked = average_ranks(np.where(tmr_undefined, -np.inf, tmr))
+    ranking = []
+    for entry in run.inputs:
+        x_ranked = average_ranks(run.input_by_key[entry.key])
+        ranking.append({
+            "key": entry.key,
+            "rank_correlation_onset_margin": _pearson(x_ranked, margin_ranked),
+            "rank_correlation_tmrad_at_mtsr": _pearson(x_ranked, tmr_ranked),
+        })
+    ranking.sort(key=lambda item: -max(abs(item["rank_correlation_onset_margin"] or 0.0),
+                                       abs(item["rank_correlation_tmrad_at_mtsr"] or 0.0)))
+
+    vessels = []
+    for index, vessel in enumerate(case.vessels, start=1):
+        key = f"vessel.{index}."
+        vessels.append({
+            "name": vessel.name,
+            "critical_coolant_temperature_degC": _spread(
+                fig[key + "critical_coolant_temperature"], offset=ZERO_CELSIUS,
+                undefined=-np.inf),
+            "coolant_margin_K": _spread(fig[key + "coolant_margin"], undefined=-np.inf),
+            "probability_no_stable_point": _fraction(fig[key + "no_stable_point"], n),
+            "probability_mtsr_at_or_above_no_return": _fraction(
+                fig[key + "mtsr_above_no_return"], n),
+            "undefined_samples": int(np.count_nonzero(fig[key + "undefined"])),
+        })
+
+    inputs = []
+    for entry in run.inputs:
+        x = run.input_by_key[entry.key]
+        first = entry.marginals[0]
+        inputs.append({
+            "key": entry.key,
+            "as_written": entry.text,
+            "source": entry.source,
+            "distribution": first.describe(entry.unit),
+            "applies_to": list(entry.targets),
+            "nominal_si": first.nominal,
+            "unit_si": entry.unit,
+            "sample_mean_si": float(np.mean(x)),
+            "sample_std_si": float(np.std(x, ddof=1)),
+        })
+
+    count_td24 = int(np.count_nonzero(no_td24 | (mtsr >= np.where(no_td24, np.inf, td24))))
+    nominal_phrase = _probability_phrase(f"class {nominal_class} with probability",
+                                         int(counts[nominal_class - 1]), n, " ")
+    high_phrase = _probability_phrase("P(class >= 4)", int(counts[3] + counts[4]), n)
+    td24_phrase = _probability_phrase("P(MTSR >= TD24)", count_td24, n)
+    if crude:
+        # Fail closed: the crude onset estimate never grants a low class, with or without
+        # sampling; only the probability of the high classes is stated.
+        confidence = (f"Monte Carlo ({n} samples, seed {run.seed}) on the crude onset estimate: "
+                      f"{high_phrase}; {td24_phrase}; a low class cannot be concluded from it.")
+    else:
+        confidence = (f"Monte Carlo ({n} samples, seed {run.seed}): {nominal_phrase}; "
+                      f"{high_phrase}; {td24_phrase}.")
+        if most_probable != nominal_class:
+            confidence += (f" The most probable class is {most_probable} "
+                           f"({_format_probability(class_probabilities[str(most_probable)])}), "
+                           f"not the nominal class.")
+    count_no_td24 = int(np.count_nonzero(no_td24))
+    if count_no_td24:
+        confidence += (f" {count_no_td24} samples without a TD24 in 150-1500 K count as class 5 "
+                       f"(fail closed).")
+
+    warnings = []
+    if count_no_td24:
+        warnings.append(f"Monte Carlo: {count_no_td24} of {n} samples have no TD24 between 150 K "
+                        f"and 1500 K; they are counted as class 5 (fail closed) and rank as the "
+                        f"most critical in the percentiles.")
+    if np.any(tmr_undefined):
+        warnings.append(f"Monte Carlo: TMRad at MTSR is undefined for "
+                        f"{int(np.count_nonzero(tmr_undefined))} samples; counted as 'frequent' "
+                        f"(fail closed).")
+    for vessel in vessels:
+        if vessel["undefined_samples"]:
+            warnings.append(f"Monte Carlo: the heat balance of {vessel['name']} is undefined for "
+                            f"{vessel['undefined_samples']} samples; counted as no stable point "
+                            f"(fail closed).")
+    if run.not_propagated:
+        warnings.append("Monte Carlo: the uncertainty written for " + ", ".join(run.not_propagated)
+                        + " is not propagated (the input does not enter the figures of the "
+                        "Monte Carlo); those inputs are held at their values.")
+    names = {target for entry in run.inputs for target in entry.targets}
+    if ("decomposition.activation_energy" in names
+            and case.sections["decomposition"].given("pre_exponential_factor")
+            and run.correlation is None):
+        warnings.append(
+            "Monte Carlo: activation_energy varies with ln A held (no arrhenius_correlation): "
+            "fitted E and ln A are strongly correlated, so the spread of TD24 and TMRad is "
+            "overstated; give arrhenius_correlation or a reference_rate at a measured "
+            "temperature.")
+    if not crude and (class_probabilities[str(nominal_class)] < 0.5
+                      or most_probable > nominal_class):
+        warnings.append(
+            f"Monte Carlo: the nominal class {nominal_class} has probability "
+            f"{_format_probability(class_probabilities[str(nominal_class)])}; the verdict is not "
+            f"robust against the stated uncertainties.")
+
+    block = {
+        "samples": n,
+        "seed": run.seed,
+        "method": ("Monte Carlo propagation (JCGM 101:2008), inputs drawn as given, others at "
+                   "their case values; percentiles p5/p50/p95; sensitivity by Spearman rank "
+                   "correlation"),
+        "inputs": inputs,
+        "arrhenius_correlation": run.correlation,
+        "not_propagated": list(run.not_propagated),
+        "class_probabilities": class_probabilities,
+        "nominal_class": nominal_class,
+        "nominal_class_probability": class_probabilities[str(nominal_class)],
+        "most_probable_class": most_probable,
+        "probability_class_4_or_5": float(p_class_4_5),
+        "probability_mtsr_at_or_above_td24": p_td24,
+        "probability_mtsr_at_or_above_mtt": p_mtt,
+        "probability_standard_error_max": 0.5 / math.sqrt(n),
+        "severity_probabilities": level_probabilities(severity_codes, crit.SEVERITY_4_LEVELS),
+        "severity_3_probabilities": level_probabilities(severity3, crit.SEVERITY_3_LEVELS),
+        "probability_level_probabilities": level_probabilities(probability_codes,
+                                                               crit.PROBABILITY_6_LEVELS),
+        "probability_3_level_probabilities": level_probabilities(probability3,
+                                                                 crit.PROBABILITY_3_LEVELS),
+        "mtsr_degC": _spread(mtsr, offset=ZERO_CELSIUS),
+        "td24_degC": _spread(td24, offset=ZERO_CELSIUS, undefined=-np.inf),
+        "tmrad_at_mtsr_h": _spread(tmr, scale=SECONDS_PER_HOUR, undefined=0.0),
+        "onset_margin_K": _spread(margin, undefined=-np.inf),
+        "synthesis_adiabatic_rise_K": _spread(fig["synthesis_rise"]),
+        "decomposition_adiabatic_rise_K": _spread(fig["decomposition_rise"]),
+        "td24_no_root_samples": count_no_td24,
+        "vessels": vessels,
+        "sensitivity": ranking,
+        "confidence": confidence,
+    }
+    block["summary_lines"] = _summary_lines(block)
+    return block, warnings
+
+
+def _summary_lines(block) -> list[str]:
+    width = 78
+
+    def fit(text):
+        return text if len(text) <= width else text[:width - 3] + "..."
+
+    def num(value, digits=1):
+        if value is None:
+            return "n/a"
+        if digits is None:  # times: three significant digits
+            return f"{value:.3g}" if abs(value) < 1e5 else f"{value:.2e}"
+        return f"{value:.{digits}f}"
+
+    p = _format_probability
+    lines = [f"Uncertainty of the verdict (Monte Carlo, {block['samples']} samples, seed "
+             f"{block['seed']})"]
+    classes = "  ".join(f"{k}: {p(v)}" for k, v in block["class_probabilities"].items())
+    lines.append(fit(f"  class probability  {classes}"))
+    lines.append(fit(f"  P(class >= 4) = {p(block['probability_class_4_or_5'])}   "
+                     f"P(MTSR >= TD24) = {p(block['probability_mtsr_at_or_above_td24'])}   "
+                     f"P(MTSR >= MTT) = {p(block['probability_mtsr_at_or_above_mtt'])}"))
+    lines.append(f"  (standard error of a probability at most "
+                 f"{block['probability_standard_error_max']:.2g})")
+    lines.append(f"  {'':<26}{'p5':>10}{'p50':>10}{'p95':>10}")
+    for label, key, digits in (("MTSR degC", "mtsr_degC", 1), ("TD24 degC", "td24_degC", 1),
+                               ("TD24 - MTSR K", "onset_margin_K", 1),
+                               ("TMRad at MTSR h", "tmrad_at_mtsr_h", None)):
+        spread = block[key]
+        lines.append(f"  {label:<26}{num(spread['p5'], digits):>10}"
+                     f"{num(spread['p50'], digits):>10}{num(spread['p95'], digits):>10}")
+    severity = "  ".join(f"{k} {p(v)}" for k, v in block["severity_probabilities"].items())
+    lines.append(fit(f"  severity     {severity}"))
+    levels = list(block["probability_level_probabilities"].items())
+    first = "  ".join(f"{k} {p(v)}" for k, v in levels[:3])
+    second = "  ".join(f"{k} {p(v)}" for k, v in levels[3:])
+    lines.append(fit(f"  probability  {first}"))
+    lines.append(fit(f"               {second}"))
+    for vessel in block["vessels"]:
+        crit = vessel["critical_coolant_temperature_degC"]
+        lines.append(fit(f"  {vessel['name']}"))
+        lines.append(fit(f"    critical coolant temperature p5/p50/p95 {num(crit['p5'])}/"
+                         f"{num(crit['p50'])}/{num(crit['p95'])} degC"))
+        lines.append(fit(f"    P(no stable point) = {p(vessel['probability_no_stable_point'])}   "
+                         f"P(MTSR >= T_NR) = "
+                         f"{p(vessel['probability_mtsr_at_or_above_no_return'])}"))
+    lines.append("  sensitivity (Spearman rank correlation)     TD24 - MTSR   TMRad at MTSR")
+    for item in block["sensitivity"]:
+        a = item["rank_correlation_onset_margin"]
+        b = item["rank_correlation_tmrad_at_mtsr"]
+        lines.append(fit(f"    {item['key'][:42]:<42}"
+                         f"{'n/a' if a is None else format(a, '+.2f'):>12}"
+                         f"{'n/a' if b is None else format(b, '+.2f'):>16}"))
+    if block["td24_no_root_samples"]:
+        lines.append(fit(f"  {block['td24_no_root_samples']} samples without TD24 in 150-1500 K: "
+                         f"counted as class 5 (fail closed)"))
+    return lines
