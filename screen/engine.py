@@ -8,6 +8,7 @@ or prints.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass, field
 from typing import Any
@@ -136,6 +137,25 @@ def decomposition_kinetics(case):
     return kinetics, "kinetics"
 
 
+@functools.lru_cache(maxsize=256)
+def _characteristic_temperatures(key, cp):
+    from screen.models import decomposition as dm
+
+    kinetics = dm.DecompositionKinetics(*key)
+    return float(dm.td24(kinetics, cp)), float(dm.td8(kinetics, cp))
+
+
+def characteristic_temperatures(kinetics, cp) -> tuple[float, float]:
+    """(TD24, TD8) [K] of scalar kinetics, cached: sweeps of vessel or process inputs do not
+    change them, and each costs a root search."""
+    key = (kinetics.model, float(kinetics.energy), float(kinetics.activation_energy),
+           float(kinetics.pre_exponential_factor), float(kinetics.order),
+           float(kinetics.autocatalytic_order), float(kinetics.initial_conversion),
+           None if kinetics.log_pre_exponential_factor is None
+           else float(kinetics.log_pre_exponential_factor))
+    return _characteristic_temperatures(key, float(cp))
+
+
 def synthesis_specific_energy(case) -> float:
     """Heat of the desired reaction per kg of final mass [J/kg]."""
     syn = case.sections["synthesis"]
@@ -226,8 +246,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
         tmrad_tp = float(dm.tmrad(kinetics, t_p, cp))
         tmrad_mtsr = float(dm.tmrad(kinetics, mtsr, cp))
         tmrad_mtsr_zero = float(dm.tmrad_townsend_tou_for(kinetics, mtsr, cp))
-        td24 = float(dm.td24(kinetics, cp))
-        td8 = float(dm.td8(kinetics, cp))
+        td24, td8 = characteristic_temperatures(kinetics, cp)
     except ScreenError as exc:
         raise type(exc)(exc.message, exc.key or "decomposition", case.path) from None
     for name, value in (("TMRad at T_p", tmrad_tp), ("TMRad at MTSR", tmrad_mtsr),

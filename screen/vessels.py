@@ -93,7 +93,9 @@ def vessel_results(case, kinetics, mtsr):
     # autocatalytic decomposition the fresh-mass rate (at a0) is far below the rate the mass
     # reaches, so the rate at the maximum of f(a) = a^m (1-a)^n, a* = m/(m+n), is used instead
     # (conservative; derived).
-    t_ref = float(dm.td24(kinetics, cp))
+    from screen.engine import characteristic_temperatures
+
+    t_ref = characteristic_temperatures(kinetics, cp)[0]
     conversion_basis = None
     warnings: list[str] = []
     if kinetics.model == "autocatalytic":
