@@ -53,6 +53,11 @@ KEY_FIGURE_LABELS = {
     "DSC onset (information only)": ("dsc_onset_degC", "decimal1"),
 }
 NUMBER = re.compile(r"^[-+]?\d+(?:\.\d+)?(?:e[-+]\d+)?$")
+#: Legend texts of the simulated temperature course (issue 5: the simulated course must not be
+#: called an adiabatic decomposition from MTSR).
+SIMULATED_STOPPED = "simulated course after failure at the worst time (feed stopped)"
+SIMULATED_CONTINUING = "simulated course after failure at the worst time (feed continuing)"
+FLOAT = r"([-+]?\d+(?:\.\d+)?(?:e[-+]\d+)?)"
 
 
 def _invoke(args, expect=0):
@@ -222,7 +227,9 @@ def test_missing_directory_leaves_no_file(tmp_path):
 
 
 def test_optional_blocks_are_rendered_when_present(tmp_path):
-    """Simulation, uncertainty and scenario members (other modules) appear only when given."""
+    """Partial members (another module still at work) are laid out defensively: missing
+    figures print as n/a, nothing is lost, and page 1 carries the governing MTSR and the
+    confidence sentence."""
     import numpy as np
 
     from screen.report import write_report
@@ -237,16 +244,31 @@ def test_optional_blocks_are_rendered_when_present(tmp_path):
     result.results["scenarios"] = {"rows": [{"name": "double charge", "mtsr_degC": 150.0,
                                              "criticality_class": 4}]}
     result.results["simulation"] = {"worst_failure_time_h": 2.5}
-    result.curves["simulation"] = {"time_s": np.linspace(0.0, 7200.0, 40),
-                                   "temperature_K": np.linspace(330.0, 420.0, 40)}
+    time = np.linspace(0.0, 7200.0, 40)
+    result.curves["simulation"] = {"time_s": time, "temperature_K": np.linspace(330.0, 420.0, 40),
+                                   "time_after_failure_s": time,
+                                   "failure_temperature_K": np.linspace(360.0, 380.0, 40)}
+    result.results["mtsr_governing_degC"] = result.results["mtsr_degC"] + 12.5
+    result.results["mtsr_governing_basis"] = "simulation (feed stopped at the worst failure time)"
+    result.results["some_new_block"] = {"summary_lines": ["A block this report does not know."]}
     pdf = tmp_path / "blocks.pdf"
     write_report(result, pdf, generated_at=STAMP)
-    text = _flat("\n".join(_page_texts(pdf)))
-    for expected in ("Cooling-failure simulation", "worst_failure_time_h",
-                     "from the dynamic simulation", "Uncertainty of the verdict",
-                     "Sensitivity ranking of the inputs", "decomposition.activation_energy",
-                     "Deviation scenarios", "double charge"):
+    pages = _page_texts(pdf)
+    text = _flat("\n".join(pages))
+    for expected in ("Cooling-failure simulation",
+                     "Worst failure time (since the start of the run)", "2.50",
+                     "from the dynamic simulation", SIMULATED_STOPPED,
+                     "Uncertainty of the verdict", "Sensitivity ranking of the inputs",
+                     "decomposition.activation_energy", "Probability of each criticality class",
+                     "0.750", "Deviation scenarios", "double charge",
+                     "A block this report does not know."):
         assert expected in text, expected
+    assert "could not be laid out" not in text
+    assert "adiabatic decomposition from MTSR" not in text  # the simulated course replaces it
+    page_one = _flat(pages[0])
+    governing = result.results["mtsr_governing_degC"]
+    assert f"Governing MTSR: {governing:.1f} °C" in page_one
+    assert "Confidence:" in page_one and "class 3: 0.750" in page_one
 
 
 def _grignard_result():
@@ -315,3 +337,171 @@ def test_three_significant_digit_format(value, printed):
     text = format_significant(value, 3)
     assert text == printed
     assert abs(float(text) - value) <= _tolerance("significant3", value) * (1 + 1e-9)
+
+
+# --------------------------------------------------------------------------------------------
+# Feature blocks: barrier, scenarios, simulation, uncertainty (PDF against the JSON of the
+# same run: `check --json --pdf` prints the JSON of the very result the PDF shows).
+
+
+def _check_with_pdf(folder, case, *extra):
+    pdf = folder / "report.pdf"
+    run = _invoke(["check", CASES / case, "--json", "--pdf", pdf, *extra])
+    data = json.loads(run.stdout.split("\nPDF written")[0])
+    pages = _page_texts(pdf)
+    return {"json": data, "pages": pages, "text": _flat("\n".join(pages))}
+
+
+def _close(printed, expected, kind):
+    """The printed number equals the JSON value to its printed precision."""
+    value = float(printed)
+    return abs(value - expected) <= _tolerance(kind, expected) * (1 + 1e-9)
+
+
+@pytest.fixture(scope="module")
+def alkylation(tmp_path_factory):
+    """Class 4 with a condenser (barrier assessed) and six deviation scenarios."""
+    return _check_with_pdf(tmp_path_factory.mktemp("alkylation"),
+                           "alkylation_reflux_class4.toml")
+
+
+def test_barrier_verdict_words_in_the_pdf_equal_the_json(alkylation):
+    barrier = alkylation["json"]["results"]["barrier"]
+    assert barrier["assessed"] and barrier["vessels"]
+    page_one = _flat(alkylation["pages"][0])
+    text = alkylation["text"]
+    block = text[text.index("Evaporative cooling as a barrier"):]
+    assert f"Overall (worst vessel): {barrier['verdict'].upper()}." in block
+    for vessel in barrier["vessels"]:
+        name, verdict = vessel["name"], vessel["barrier_verdict"].upper()
+        assert verdict in ("HOLDS", "DOUBTFUL", "FAILS")
+        assert f"{name}: {verdict}" in page_one  # one line per vessel on the summary page
+        row = re.search(re.escape(name) + r" (\S+) (\S+) (\S+) / (\S+) (\S+) / (\S+) (\S+) / "
+                        r"(\S+) (HOLDS|DOUBTFUL|FAILS)", block)
+        assert row is not None, f"barrier table row of {name} missing"
+        keys = [("heat_release_rate_at_mtt_kW", "significant4"),
+                ("vapour_mass_flow_kg_per_h", "significant4"),
+                ("condenser_duty_needed_kW", "significant4"),
+                ("condenser_capacity_kW", "significant4"),
+                ("vapour_line_velocity_m_per_s", "significant3"),
+                ("flooding_velocity_m_per_s", "significant3"),
+                ("solvent_evaporated_kg", "significant4"),
+                ("solvent_present_kg", "significant4")]
+        for printed, (key, kind) in zip(row.groups()[:8], keys):
+            assert _close(printed, vessel[key], kind), (key, printed, vessel[key])
+        assert row.group(9) == verdict
+        # Every reason is listed with its grade in capitals.
+        for reason in vessel["reasons"]:
+            sentence, grade = re.match(r"^(.*) \((holds|doubtful|fails)\)$", reason).groups()
+            shown = re.sub(r"\bT_(\w+)", r"T\1", sentence.replace(" degC", " °C"))
+            assert _flat(f"{shown} — {grade.upper()}") in block, reason
+
+
+def test_scenario_rows_in_the_pdf_equal_the_json(alkylation):
+    scenarios = alkylation["json"]["results"]["scenarios"]
+    rows = scenarios["rows"]
+    assert scenarios["run"] and len(rows) == scenarios["deviations"] + 1 >= 2
+    text = alkylation["text"]
+    table = text[text.index("Barrier change"):]
+    for row in rows:
+        assert row["error"] is None, row["name"]
+        match = re.search(
+            re.escape(row["name"]) + r" " + FLOAT + r" (–|" + FLOAT[1:-1] + r") " + FLOAT
+            + r" (–|×\S+) (\d|n/c) (–|0|[-+]\d|n/c) (HOLDS|DOUBTFUL|FAILS|NOT ASSESSED) "
+            r"(–|unchanged|[A-Z ]+ → [A-Z ]+?)(?= [a-z]| Ratio:)", table)
+        assert match is not None, f"scenario row {row['name']!r} missing"
+        mtsr, change, tmrad, ratio, klass, class_change, barrier, barrier_change = \
+            match.groups()
+        assert _close(mtsr, row["mtsr_degC"], "decimal1")
+        assert _close(tmrad, row["tmrad_at_mtsr_h"], "significant3")
+        assert klass == str(row["criticality_class"])
+        assert barrier == row["barrier_verdict"].upper()
+        if row["key"] == "base":
+            assert change == ratio == class_change == barrier_change == "–"
+            continue
+        assert _close(change, row["mtsr_change_K"], "decimal1")
+        assert _close(ratio[1:], row["tmrad_ratio"], "significant3")
+        assert int(class_change) == row["class_change"]
+        if row["barrier_change"] == "unchanged":
+            assert barrier_change == "unchanged"
+        else:
+            before, after = row["barrier_change"].split(" to ")
+            assert barrier_change == f"{before.upper()} → {after.upper()}"
+    assert f"Worst deviation: {scenarios['worst_scenario']} (class {scenarios['worst_class']})" \
+        in text
+
+
+def test_simulated_course_and_simulation_figures(tmp_path):
+    """Semi-batch kinetics: the temperature course is the simulated one (both feed modes), never
+    labelled as an instantaneous synthesis rise, and the key figures equal the JSON."""
+    run = _check_with_pdf(tmp_path, "acylation_semibatch_kinetics.toml")
+    simulation = run["json"]["results"]["simulation"]
+    text = run["text"]
+    assert SIMULATED_STOPPED in text and SIMULATED_CONTINUING in text
+    assert "adiabatic decomposition from MTSR" not in text
+    assert "taken as instantaneous" not in text and "assumed instantaneous" not in text
+    row = re.search(r"MTSR, highest over the failure times " + FLOAT + " " + FLOAT + " °C", text)
+    assert _close(row.group(1), simulation["mtsr_feed_stopped_degC"], "decimal1")
+    assert _close(row.group(2), simulation["mtsr_feed_continuing_degC"], "decimal1")
+    row = re.search(r"Worst failure time \(since the start of the run\) " + FLOAT + " " + FLOAT,
+                    text)
+    assert _close(row.group(1), simulation["worst_failure_time_h"], "significant3")
+    assert _close(row.group(2), simulation["worst_failure_time_feed_continuing_h"],
+                  "significant3")
+    triggered = "YES" if simulation["decomposition_triggered_feed_stopped"] else "no"
+    assert f"Decomposition triggered within 24 h {triggered}" in text
+    if not simulation["dosing_warnings"]:
+        assert "Dosing warnings None:" in text
+    for message in simulation["dosing_warnings"]:
+        assert message["code"].replace("_", " ") in text
+
+
+def test_uncertainty_block_percentiles_and_class_probabilities(tmp_path):
+    run = _check_with_pdf(tmp_path, "esterification_uncertain.toml", "--uncertainty", "2000",
+                          "--seed", "11")
+    block = run["json"]["results"]["uncertainty"]
+    text = run["text"]
+    assert f"Monte Carlo propagation with {block['samples']} samples, seed {block['seed']}" in text
+    assert block["samples"] == 2000 and block["seed"] == 11
+    assert "Confidence:" in _flat(run["pages"][0])
+    for label, key, kind in (("MTSR", "mtsr_degC", "decimal1"),
+                             ("TD24", "td24_degC", "decimal1")):
+        row = re.search(r"\b" + label + " " + FLOAT + " " + FLOAT + " " + FLOAT + " " + FLOAT
+                        + " °C", text)
+        assert row is not None, label
+        nominal, p5, p50, p95 = (float(v) for v in row.groups())
+        assert _close(row.group(1), run["json"]["results"][key], kind)
+        for printed, name in zip(row.groups()[1:], ("p5", "p50", "p95")):
+            assert _close(printed, block[key][name], kind), (label, name)
+        assert p5 <= p50 <= p95
+    probabilities = re.search(r"Criticality class 1 2 3 4 5 Probability (\S+(?: \S+)?) "
+                              r"(\S+(?: \S+)?) (\S+(?: \S+)?) (\S+(?: \S+)?) (\S+(?: \S+)?)"
+                              r"(?= P\(class)", text)
+    assert probabilities is not None
+    for printed, klass in zip(probabilities.groups(), "12345"):
+        expected = block["class_probabilities"][klass]
+        if printed.startswith("<"):
+            assert expected == 0.0  # no sample: the rule-of-three bound is printed
+        elif printed.startswith(">"):
+            assert expected == 1.0
+        else:
+            assert abs(float(printed) - expected) <= 5e-4 * (1 + 1e-9)
+    assert "Sensitivity ranking of the inputs" in text
+    for item in block["sensitivity"]:
+        assert item["key"] in text
+
+
+@pytest.mark.parametrize("count, samples, printed", [
+    # Rule of three: with no event in n trials the one-sided 95 % upper bound is 3/n
+    # (Hanley & Lippman-Hand, "If nothing goes wrong, is everything all right?", JAMA 249
+    # (1983) 1743-1745).
+    (0, 20000, "< 0.00015"), (0, 300, "< 0.01"), (20000, 20000, "> 0.9998"),
+    (1, 1000, "0.001"), (1, 20000, "5.0e-05"), (None, None, "0"),
+])
+def test_probabilities_are_never_printed_as_a_bare_zero(count, samples, printed):
+    from screen.report.blocks import format_probability
+
+    value = 0.0 if count is None else count / samples
+    assert format_probability(value, samples) == printed
+    if printed.startswith("<"):
+        assert float(printed[2:]) == pytest.approx(3.0 / samples, rel=0.05)

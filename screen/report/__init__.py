@@ -1,9 +1,12 @@
 """PDF screening summary of a :class:`screen.engine.ScreeningResult`.
 
 Public API: :func:`write_report`. Importing this package is cheap: reportlab and matplotlib are
-imported only when a report is written. The layout lives in :mod:`screen.report.pdf`, the
-figures in :mod:`screen.report.figures`, fonts, colours and number formats in
-:mod:`screen.report.style`; ``docs/report.md`` describes the report.
+imported only when a report is written. The pages are laid out in :mod:`screen.report.pdf`, the
+feature blocks (simulation, barrier, pressure, scenarios, uncertainty) in
+:mod:`screen.report.blocks`, the shared table and paragraph helpers in
+:mod:`screen.report.layout`, the figures in :mod:`screen.report.figures` (drawn with
+:mod:`screen.report.plot`), fonts, colours and number formats in :mod:`screen.report.style`;
+``docs/report.md`` describes the report.
 """
 
 from __future__ import annotations

@@ -290,7 +290,7 @@ def semenov_diagram(curve: dict):
 
 def temperature_course(time_s, temperature_k, levels_k: dict, process_temperature_k=None,
                        time_to_maximum_rate_s=None, jump_at_start=True,
-                       label="adiabatic decomposition from MTSR"):
+                       label="adiabatic decomposition from MTSR", extra_courses=()):
     """Temperature-time course after a cooling failure.
 
     Parameters
@@ -307,15 +307,24 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
         Draw the synthesis rise T_p -> first temperature at t = 0.
     label : str
         Legend text of the course.
+    extra_courses : sequence of (array, array, str)
+        Further courses (time after the failure [s], temperature [K], legend text), drawn
+        dashed in the accent colour (e.g. the feed continuing after the failure).
     """
-    hours = np.asarray(time_s, dtype=float) / SECONDS_PER_HOUR
-    celsius = np.asarray(temperature_k, dtype=float) - ZERO_CELSIUS
-    valid = np.isfinite(hours) & np.isfinite(celsius)
-    hours, celsius = hours[valid], celsius[valid]
+    def finite_course(time, temperature):
+        hours = np.asarray(time, dtype=float) / SECONDS_PER_HOUR
+        celsius = np.asarray(temperature, dtype=float) - ZERO_CELSIUS
+        valid = np.isfinite(hours) & np.isfinite(celsius)
+        return hours[valid], celsius[valid]
+
+    hours, celsius = finite_course(time_s, temperature_k)
     if not len(hours):
         hours, celsius = np.array([0.0, 1.0]), np.array([math.nan, math.nan])
-    end = float(hours[-1]) or 1.0
+    others = [(*finite_course(t, y), text) for t, y, text in extra_courses]
+    others = [(h, c, text) for h, c, text in others if len(h) >= 2]
+    end = max([float(hours[-1])] + [float(h[-1]) for h, _, _ in others]) or 1.0
     candidates = [v for v in celsius if math.isfinite(v)]
+    candidates += [v for _, c, _ in others for v in c]
     candidates += [_c(v) for v in levels_k.values() if _finite(v)]
     if _finite(process_temperature_k):
         candidates.append(_c(process_temperature_k))
@@ -323,9 +332,17 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
     margin = 0.05 * (high - low) or 5.0
 
     height = 205.0
+    plot_height = height - 36.0 - 8.0
+    top = high + margin
+    if not jump_at_start:
+        # A simulated course rises early and levels off, under the legend (upper left): keep
+        # the legend rows above the highest temperature.
+        rows = 1 + len(others)
+        fraction = min((rows * 6.8 * 1.45 + 10.0) / plot_height, 0.4)
+        top = high + margin + fraction / (1.0 - fraction) * (high + margin - (low - margin))
     drawing = _drawing(height)
-    ax = Axes(drawing, 52.0, 36.0, WIDTH - 52.0 - 70.0, height - 36.0 - 8.0,
-              (-0.015 * end, 1.02 * end), (low - margin, high + margin))
+    ax = Axes(drawing, 52.0, 36.0, WIDTH - 52.0 - 70.0, plot_height,
+              (-0.015 * end, 1.02 * end), (low - margin, top))
     ax.frame(xlabel="time after the cooling failure [h]", ylabel="temperature [°C]")
     dashes = {"MTT": DASH_DOT, "TD24": DASHED, "TD8": DOTTED}
     names = {"MTT": "MTT", "TD24": "T_{D24}", "TD8": "T_{D8}"}
@@ -344,6 +361,9 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
                         "synthesis rise T_{p} → MTSR, taken as instantaneous at t = 0"))
     ax.line(hours, celsius, color=INK, width=1.6)
     entries.append(("line", dict(color=INK, width=1.6), label))
+    for other_hours, other_celsius, text in others:
+        ax.line(other_hours, other_celsius, color=ACCENT, width=1.4, dash=DASHED)
+        entries.append(("line", dict(color=ACCENT, width=1.4, dash=DASHED), text))
     if _finite(time_to_maximum_rate_s):
         x = float(time_to_maximum_rate_s) / SECONDS_PER_HOUR
         if hours[0] <= x <= hours[-1] * 1.0001:
@@ -401,33 +421,96 @@ def run_profile(time_s, series, levels_k=None, marker_time_s=None):
     return drawing
 
 
-def sensitivity_bars(names, values, value_label="sensitivity [-]"):
-    """Horizontal bar chart of a sensitivity ranking (largest magnitude on top)."""
+def sensitivity_bars(names, values, value_label="sensitivity [-]", second_values=None,
+                     series_labels=None):
+    """Horizontal bar chart of a sensitivity ranking (largest magnitude on top).
+
+    Parameters
+    ----------
+    names : sequence of str
+        The inputs.
+    values : sequence of float
+        First measure per input (e.g. a rank correlation). [-]
+    value_label : str
+        Axis label.
+    second_values : sequence of float, optional
+        Second measure per input, drawn as a hatched bar below the first. [-]
+    series_labels : (str, str), optional
+        Legend texts of the two measures (used with ``second_values``).
+
+    Values within [-1, 1] (correlations) are drawn on a symmetric axis from -1 to 1, so that
+    the bar lengths compare between cases and the side shows the sign; other values on an axis
+    fitted to them. The value is written at the end of each bar.
+    """
     from reportlab.graphics.shapes import Rect
     from reportlab.lib import colors
 
-    order = sorted(range(len(values)), key=lambda i: abs(float(values[i])))
+    both = second_values is not None and len(second_values) == len(values)
+    values = [float(v) for v in values]
+    second = [float(v) for v in second_values] if both else [0.0] * len(values)
+    magnitude = [max(abs(a), abs(b)) for a, b in zip(values, second)]
+    order = sorted(range(len(values)), key=lambda i: magnitude[i])
     names = [str(names[i]) for i in order]
-    values = [float(values[i]) for i in order]
-    row = 13.0
-    height = 48.0 + row * max(len(values), 1)
+    values = [values[i] for i in order]
+    second = [second[i] for i in order]
+    row = 19.0 if both else 13.0
+    legend_height = 14.0 if both else 0.0
+    height = 48.0 + legend_height + row * max(len(values), 1)
     drawing = _drawing(height)
     label_width = min(max(text_width(n, 7.0) for n in names) + 10.0, 0.4 * WIDTH)
-    limit = max(abs(v) for v in values) or 1.0
-    negative = any(v < 0 for v in values)
-    ax = Axes(drawing, label_width, 34.0, WIDTH - label_width - 12.0, height - 42.0,
-              (-limit * 1.05 if negative else 0.0, limit * 1.05), (0.0, float(len(values))))
+    largest = max(magnitude) if magnitude else 0.0
+    correlation = largest <= 1.0
+    limit = 1.0 if correlation else (largest or 1.0)
+    negative = correlation or any(v < 0 for v in values + second)
+    # Room beyond the bars for the value labels.
+    xlim = ((-limit * 1.18 if negative else 0.0), limit * 1.18)
+    ax = Axes(drawing, label_width, 34.0, WIDTH - label_width - 12.0,
+              height - 42.0 - legend_height, xlim, (0.0, float(len(values))))
     ax.frame(xlabel=value_label, yticks=False, grid_y=False)
     zero = ax.vline(0.0, color=INK, width=0.6)
-    for index, (name, value) in enumerate(zip(names, values)):
-        y0, y1 = ax.ty(index + 0.2), ax.ty(index + 0.8)
+
+    def bar(value, bottom, top, hatched):
         x1 = ax.tx(value)
         left, width = min(zero, x1), abs(x1 - zero)
-        ax.group.add(Rect(left, y0, width, y1 - y0,
-                          fillColor=colors.HexColor(GREY_MID) if value >= 0 else None,
+        ax.group.add(Rect(left, bottom, width, top - bottom,
+                          fillColor=None if hatched else colors.HexColor(GREY_MID),
                           strokeColor=colors.HexColor(INK), strokeWidth=0.6))
-        if value < 0:
-            ax.band(left, y0, left + width, y1, hatch=True, hatch_color=INK, hatch_spacing=3.0)
-        add_text(ax.foreground, ax.x - 4, (y0 + y1) / 2.0, name, size=7.0, anchor="end",
+        if hatched and width > 0:
+            ax.band(left, bottom, left + width, top, hatch=True, hatch_color=INK,
+                    hatch_spacing=3.0)
+        text = "0.00" if abs(value) < 0.005 else f"{value:+.2f}"
+        if value >= 0:
+            ax.text(x1 + 2.5, (bottom + top) / 2.0, text, size=6.3, valign="middle",
+                    color=GREY_DARK)
+        else:
+            ax.text(x1 - 2.5, (bottom + top) / 2.0, text, size=6.3, valign="middle",
+                    anchor="end", color=GREY_DARK)
+
+    for index, name in enumerate(names):
+        if both:
+            bar(values[index], ax.ty(index + 0.52), ax.ty(index + 0.88), False)
+            bar(second[index], ax.ty(index + 0.12), ax.ty(index + 0.48), True)
+        else:
+            bar(values[index], ax.ty(index + 0.2), ax.ty(index + 0.8), False)
+        add_text(ax.foreground, ax.x - 4, ax.ty(index + 0.5), name, size=7.0, anchor="end",
                  valign="middle")
+    if both:
+        labels = series_labels or ("first measure", "second measure")
+        x = label_width
+        y = height - 9.0
+        for text, hatched in zip(labels, (False, True)):
+            drawing.add(Rect(x, y - 4.0, 14.0, 8.0, strokeWidth=0.6,
+                             strokeColor=colors.HexColor(INK),
+                             fillColor=None if hatched else colors.HexColor(GREY_MID)))
+            if hatched:
+                for offset in range(0, 24, 3):
+                    clipped = clip_segment(x + offset - 8.0, y - 4.0, x + offset, y + 4.0, x,
+                                           y - 4.0, x + 14.0, y + 4.0)
+                    if clipped is not None:
+                        from reportlab.graphics.shapes import Line
+
+                        drawing.add(Line(*clipped, strokeColor=colors.HexColor(INK),
+                                         strokeWidth=0.45))
+            width = add_text(drawing, x + 18.0, y, text, size=7.0, valign="middle")
+            x += 18.0 + width + 18.0
     return drawing

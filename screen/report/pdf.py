@@ -6,7 +6,8 @@ Structure (see ``docs/report.md``):
    figures; the warnings.
 2. Figures: the criticality temperature scale, TMRad against start temperature, the temperature
    course after a cooling failure, the Semenov diagram per vessel and the vessel (scale-up)
-   table; optional blocks (simulation, uncertainty, scenarios) when the result carries them.
+   table; the feature blocks (simulation, barrier, pressure, scenarios, uncertainty; laid out
+   in :mod:`screen.report.blocks`) when the result carries them.
 3. Inputs and methods: every input as read, the --set overrides, methods and references,
    assumptions and limits, data-quality notes.
 4. Traceability: tool, case file and SHA-256, dates; the changes since an earlier result.
@@ -20,7 +21,12 @@ from __future__ import annotations
 import os
 
 from screen.constants import ZERO_CELSIUS
-from screen.report import figures
+from screen.report import blocks, figures
+from screen.report.layout import FigureCounter
+from screen.report.layout import bullet as _bullet
+from screen.report.layout import figure_block as _figure_block
+from screen.report.layout import paragraph as _p
+from screen.report.layout import table as _table
 from screen.report.style import (
     ACCENT, FONT, FONT_BOLD, FRAME_WIDTH, GREY_DARK, GREY_LIGHT, GREY_PALE, INK,
     MARGIN_BOTTOM, MARGIN_SIDE, MARGIN_TOP, MM, PAGE_HEIGHT, PAGE_WIDTH, escape, format_celsius,
@@ -139,60 +145,6 @@ def _canvas_class(header_text: str, footer_left: str):
     return NumberedCanvas
 
 
-def _figure_block(drawing, number: int, title: str, caption: str, styles):
-    """A figure (a vector drawing) with its numbered caption, kept on one page."""
-    from reportlab.platypus import KeepTogether, Paragraph, Spacer
-
-    text = f"<b>Figure {number}. {escape(title)}</b> {caption}"
-    return KeepTogether([Spacer(1, 4), drawing, Paragraph(text, styles["caption"])])
-
-
-def _table(rows, widths, header=True, zebra=True, font_size=8, align_right_from=None,
-           bold_rows=(), padding=2):
-    """A restrained table: thin rules, grey header, optional pale zebra rows."""
-    from reportlab.lib import colors
-    from reportlab.platypus import Table, TableStyle
-
-    table = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
-    commands = [
-        ("FONT", (0, 0), (-1, -1), FONT, font_size),
-        ("TEXTCOLOR", (0, 0), (-1, -1), colors.HexColor(INK)),
-        ("VALIGN", (0, 0), (-1, -1), "TOP"),
-        ("TOPPADDING", (0, 0), (-1, -1), padding),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), padding),
-        ("LEFTPADDING", (0, 0), (-1, -1), 3),
-        ("RIGHTPADDING", (0, 0), (-1, -1), 3),
-        ("LINEBELOW", (0, -1), (-1, -1), 0.6, colors.HexColor(INK)),
-    ]
-    if header:
-        commands += [
-            ("FONT", (0, 0), (-1, 0), FONT_BOLD, font_size),
-            ("LINEABOVE", (0, 0), (-1, 0), 0.6, colors.HexColor(INK)),
-            ("LINEBELOW", (0, 0), (-1, 0), 0.6, colors.HexColor(INK)),
-            ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor(GREY_LIGHT)),
-        ]
-    else:
-        commands.append(("LINEABOVE", (0, 0), (-1, 0), 0.6, colors.HexColor(INK)))
-    if zebra:
-        for index in range(1 if header else 0, len(rows)):
-            if (index - (1 if header else 0)) % 2 == 1:
-                commands.append(("BACKGROUND", (0, index), (-1, index),
-                                 colors.HexColor(GREY_PALE)))
-    if align_right_from is not None:
-        commands.append(("ALIGN", (align_right_from, 1 if header else 0), (align_right_from, -1),
-                         "RIGHT"))
-    for index in bold_rows:
-        commands.append(("FONT", (0, index), (-1, index), FONT_BOLD, font_size))
-    table.setStyle(TableStyle(commands))
-    return table
-
-
-def _p(text, style):
-    from reportlab.platypus import Paragraph
-
-    return Paragraph(text, style)
-
-
 # --------------------------------------------------------------------------------------------
 # Page 1
 
@@ -239,12 +191,6 @@ def _caution_block(result, styles):
     return table
 
 
-def _bullet(text, style, symbol="■"):
-    from reportlab.platypus import Paragraph
-
-    return Paragraph(text, style, bulletText=symbol)
-
-
 def _verdict_block(results, styles):
     from reportlab.lib import colors
     from reportlab.platypus import Table, TableStyle
@@ -270,6 +216,7 @@ def _verdict_block(results, styles):
         ("BOTTOMPADDING", (0, -1), (-1, -1), 6),
     ]))
     lines = []
+    governing = _governing_mtsr_line(results)
     if status != "screened" or klass is None:
         # The engine's own verdict sentence says what cannot be concluded and what to do.
         lines.append(_p(f"<b>{prose(results.get('verdict', ''))}</b>", styles["verdict"]))
@@ -277,6 +224,8 @@ def _verdict_block(results, styles):
         qualifier = "" if status == "screened" else " (crude estimate)"
         lines.append(_p(f"<b>Class {klass}{qualifier}.</b> "
                         f"{prose(results.get('criticality_meaning', ''))}", styles["verdict"]))
+    if governing:
+        lines.append(_p(governing, styles["verdict"]))
     lines.append(_p(
         f"<b>Severity:</b> {_level(results, 'severity_4', 'severity')}, from the adiabatic rise "
         f"of the runaway, {format_kelvin(results['runaway_adiabatic_rise_K'])} K.",
@@ -297,6 +246,15 @@ def _verdict_block(results, styles):
     else:
         lines.append(_p("<b>Stability per vessel:</b> no vessel in the case; the Semenov "
                         "heat balance was not assessed.", styles["verdict"]))
+    barrier_lines = blocks.barrier_verdict_lines(results.get("barrier"))
+    if barrier_lines:
+        lines.append(_p("<b>Evaporative-cooling barrier per vessel</b> (boiling at the MTT; "
+                        "see the barrier block):", styles["verdict"]))
+        for text in barrier_lines:
+            lines.append(_bullet(text, styles["bullet"], "–"))
+    confidence = _confidence(results.get("uncertainty"))
+    if confidence:
+        lines.append(_p(f"<b>Confidence:</b> {prose(confidence)}", styles["verdict"]))
     table = Table([[badge, lines]], colWidths=[34 * MM, FRAME_WIDTH - 34 * MM])
     table.setStyle(TableStyle([
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
@@ -305,6 +263,40 @@ def _verdict_block(results, styles):
         ("RIGHTPADDING", (1, 0), (1, 0), 0),
     ]))
     return table
+
+
+def _governing_mtsr_line(results) -> str | None:
+    """Page-1 line when a simulated MTSR higher than the stated one governs the class."""
+    governing = results.get("mtsr_governing_degC")
+    if not isinstance(governing, (int, float)):
+        return None
+    basis = results.get("mtsr_governing_basis") or "simulation"
+    text = (f"<b>Governing MTSR: {format_celsius(governing)} °C</b> from the {escape(basis)}, "
+            f"higher than the {format_celsius(results.get('mtsr_degC'))} °C from the stated "
+            f"accumulation")
+    stated_class = results.get("criticality_class_stated_mtsr")
+    if stated_class is not None:
+        text += (f"; it raises the class from {escape(stated_class)} to "
+                 f"{escape(results.get('criticality_class'))}")
+    else:
+        text += "; the class rests on it"
+    return text + "."
+
+
+def _confidence(block) -> str | None:
+    """The confidence sentence of the uncertainty block (None without one)."""
+    if not isinstance(block, dict):
+        return None
+    text = block.get("confidence")
+    if isinstance(text, str) and text.strip():
+        return text.strip()
+    probabilities = block.get("class_probabilities")
+    if isinstance(probabilities, dict) and probabilities:
+        shown = ", ".join(f"class {k}: {blocks.format_probability(v, block.get('samples'))}"
+                          for k, v in sorted(probabilities.items(), key=lambda kv: str(kv[0])))
+        return (f"Monte Carlo ({block.get('samples', 'n/a')} samples, seed "
+                f"{block.get('seed', 'n/a')}): {shown}.")
+    return None
 
 
 def _vessel_summary(vessel, results) -> str:
@@ -366,14 +358,12 @@ def _key_figures_table(results, styles):
 
 
 def _warnings_block(result, styles):
-    from reportlab.platypus import Paragraph
-
     story = [_p(f"Warnings raised for this case ({len(result.warnings)})", styles["h2"])]
     if not result.warnings:
         story.append(_p("No warning was raised for this case. The cautions above still apply.",
                         styles["body"]))
     for number, text in enumerate(result.warnings, start=1):
-        story.append(Paragraph(prose(text), styles["bullet"], bulletText=f"{number}."))
+        story.append(_bullet(prose(text), styles["bullet"], f"{number}."))
     return story
 
 
@@ -381,18 +371,43 @@ def _warnings_block(result, styles):
 # Figures section
 
 
-def _adiabatic_course(result):
-    """(time [s], temperature [K], time to maximum rate [s] or None, from_simulation)."""
+def _simulated_courses(result):
+    """Courses after the worst cooling failure from ``curves["simulation"]``, or None.
+
+    Returns a list of (time after the failure [s], temperature [K], failure time [s] or None,
+    feed mode): the feed stopped first, then the feed continuing when the simulation gives it.
+    Only the arrays named for the course after the failure are used (never the normal run).
+    """
     import numpy as np
 
     simulation = result.curves.get("simulation") if isinstance(result.curves, dict) else None
-    if isinstance(simulation, dict):
-        time = _first_array(simulation, ("failure_time_s", "time_after_failure_s", "time_s",
-                                         "time"))
-        temperature = _first_array(simulation, ("failure_temperature_K", "temperature_K",
-                                                "temperature"))
-        if time is not None and temperature is not None and len(time) == len(temperature):
-            return time, temperature, None, True
+    if not isinstance(simulation, dict):
+        return None
+    courses = []
+    for time_key, temperature_key, failure_key, mode in (
+            ("time_after_failure_s", "failure_temperature_K", "worst_failure_time_s",
+             "feed stopped"),
+            ("time_after_failure_feed_continuing_s", "failure_temperature_feed_continuing_K",
+             "worst_failure_time_feed_continuing_s", "feed continuing")):
+        time, temperature = simulation.get(time_key), simulation.get(temperature_key)
+        if time is None or temperature is None:
+            continue
+        time = np.asarray(time, dtype=float)
+        temperature = np.asarray(temperature, dtype=float)
+        if time.shape != temperature.shape or time.size < 2:
+            continue
+        failure = simulation.get(failure_key)
+        courses.append((time, temperature, failure, mode))
+    if not courses or courses[0][3] != "feed stopped":
+        return None
+    return courses
+
+
+def _adiabatic_course(result):
+    """(time [s], temperature [K], time to maximum rate [s] or None) of the adiabatic
+    decomposition from MTSR (the screening course, without the simulation)."""
+    import numpy as np
+
     from screen.models.decomposition import adiabatic_course
 
     temperatures = result.curves["temperatures_K"]
@@ -422,7 +437,7 @@ def _adiabatic_course(result):
         finite = np.isfinite(rate)
         if finite.any():
             tmr = float(time[int(np.nanargmax(np.where(finite, rate, -np.inf)))])
-    return time, temperature, tmr, False
+    return time, temperature, tmr
 
 
 def _first_array(mapping, names):
@@ -477,47 +492,82 @@ def _figures_section(result, styles, counter):
 
     from screen.errors import ScreenError
 
-    try:
-        time, temperature, time_max, simulated = _adiabatic_course(result)
-    except ScreenError as exc:
-        # Say so in place of the figure rather than lose the whole report.
-        story.append(_p(f"<b>Figure {next(counter)}. Temperature course after a cooling "
-                        f"failure: not available.</b> The adiabatic course could not be "
-                        f"computed ({prose(exc.one_line())}); the key figures above do not "
-                        f"depend on it.", styles["caption"]))
-        time = None
-    if time is not None:
-        story.extend(_course_figure(result, temps, time, temperature, time_max, simulated,
-                                    styles, counter))
+    courses = _simulated_courses(result)
+    if courses is not None:
+        story.extend(_simulated_course_figure(result, temps, courses, styles, counter))
+    else:
+        try:
+            time, temperature, time_max = _adiabatic_course(result)
+        except ScreenError as exc:
+            # Say so in place of the figure rather than lose the whole report.
+            story.append(_p(f"<b>Figure {next(counter)}. Temperature course after a cooling "
+                            f"failure: not available.</b> The adiabatic course could not be "
+                            f"computed ({prose(exc.one_line())}); the key figures above do not "
+                            f"depend on it.", styles["caption"]))
+        else:
+            story.extend(_course_figure(temps, time, temperature, time_max, styles, counter))
     story.extend(_semenov_figures(result, styles, counter))
 
     vessels = results.get("vessels") or []
     if vessels:
         story.append(Spacer(1, 4))
         story.extend(_vessel_section(vessels, styles))
-    story.extend(_optional_blocks(result, styles, counter))
+    story.extend(blocks.optional_blocks(result, styles, counter))
     return story
 
 
-def _course_figure(result, temps, time, temperature, time_max, simulated, styles, counter):
+#: Legend of the simulated course after the worst failure (the wording is relied on by tests).
+SIMULATED_COURSE_LABEL = "simulated course after failure at the worst time (feed stopped)"
+SIMULATED_CONTINUING_LABEL = "simulated course after failure at the worst time (feed continuing)"
+
+
+def _course_figure(temps, time, temperature, time_max, styles, counter):
+    """Figure 3 without a simulation: T_p -> MTSR at once, then the adiabatic decomposition."""
     drawing = figures.temperature_course(
         time, temperature, {"MTT": temps.get("MTT"), "TD24": temps.get("TD24")},
         process_temperature_k=temps.get("T_p"), time_to_maximum_rate_s=time_max,
-        jump_at_start=not simulated,
-        label=("simulated course after the worst failure (feed stopped)" if simulated else
-               "adiabatic decomposition from MTSR"))
-    if simulated:
-        caption = ("Temperature of the mass after a cooling failure at the worst moment, from "
-                   "the dynamic simulation of the run (see the simulation block). Read how long "
-                   "the mass takes to reach the MTT and T<sub>D24</sub>, and how steep the final "
-                   "runaway is.")
-    else:
-        caption = ("Temperature of the mass after a cooling failure at the worst moment. The "
-                   "synthesis rise from T<sub>p</sub> to MTSR is <b>assumed instantaneous at "
-                   "t = 0</b> (the accumulated reactant reacts at once, the conservative "
-                   "screening assumption); from MTSR the decomposition heats the mass "
-                   "adiabatically (no heat losses, φ = 1). Read the time left before the "
-                   "runaway accelerates and the temperature it ends at.")
+        jump_at_start=True, label="adiabatic decomposition from MTSR")
+    caption = ("Temperature of the mass after a cooling failure at the worst moment. The "
+               "synthesis rise from T<sub>p</sub> to MTSR is <b>assumed instantaneous at "
+               "t = 0</b> (the accumulated reactant reacts at once, the conservative "
+               "screening assumption); from MTSR the decomposition heats the mass "
+               "adiabatically (no heat losses, φ = 1). Read the time left before the "
+               "runaway accelerates and the temperature it ends at.")
+    return [_figure_block(drawing, next(counter), "Temperature course after a cooling failure.",
+                          caption, styles)]
+
+
+def _simulated_course_figure(result, temps, courses, styles, counter):
+    """Figure 3 from the simulation: feed stopped (solid), feed continuing (dashed)."""
+    time, temperature, failure, _ = courses[0]
+    extra = []
+    continuing = None
+    for other_time, other_temperature, other_failure, mode in courses[1:]:
+        if mode == "feed continuing":
+            extra.append((other_time, other_temperature, SIMULATED_CONTINUING_LABEL))
+            continuing = other_failure
+    drawing = figures.temperature_course(
+        time, temperature, {"MTT": temps.get("MTT"), "TD24": temps.get("TD24")},
+        process_temperature_k=temps.get("T_p"), time_to_maximum_rate_s=None,
+        jump_at_start=False, label=SIMULATED_COURSE_LABEL, extra_courses=extra)
+
+    def moment(seconds):
+        if not isinstance(seconds, (int, float)):
+            return "the worst moment"
+        if seconds < 30.0:
+            return "at the start of the run"
+        return f"{format_hours(seconds / 3600.0)} h into the run"
+
+    caption = (f"Temperature of the mass after a cooling failure, from the dynamic simulation of "
+               f"the run (see the simulation block): the failure at the worst time "
+               f"({moment(failure)}) with the feed stopped (solid)")
+    if extra:
+        caption += (f", and at the worst time for a feed that keeps running "
+                    f"({moment(continuing)}; dashed)")
+    caption += (". The accumulated reactant reacts at the simulated rate, adiabatically from "
+                "the failure on (no heat losses, no evaporation, φ = 1). Read how long the mass "
+                "takes to reach the MTT and T<sub>D24</sub>, and how much worse a feed that is "
+                "not stopped makes it.")
     return [_figure_block(drawing, next(counter), "Temperature course after a cooling failure.",
                           caption, styles)]
 
@@ -578,144 +628,6 @@ def _vessel_section(vessels, styles):
                              f"operation: {prose(vessel.get('synthesis_verdict') or 'n/a')}.",
                              styles["bullet"], "–"))
     return story
-
-
-#: Result members added by optional analyses, in the order shown, with their headings.
-OPTIONAL_BLOCKS = (
-    ("simulation", "Cooling-failure simulation"),
-    ("barrier", "Evaporative cooling as a barrier"),
-    ("pressure", "Pressure in a closed vessel"),
-    ("scenarios", "Deviation scenarios"),
-    ("uncertainty", "Uncertainty of the verdict"),
-)
-
-
-def _optional_blocks(result, styles, counter):
-    """Blocks of optional analyses (simulation, barrier, pressure, scenarios, uncertainty, and
-    any other member carrying ``summary_lines``), rendered only when the result has them."""
-    story = []
-    results = result.results
-    curves = result.curves if isinstance(result.curves, dict) else {}
-    known = dict(OPTIONAL_BLOCKS)
-    names = [name for name, _ in OPTIONAL_BLOCKS]
-    names += [name for name, value in results.items()
-              if name not in known and isinstance(value, dict) and value.get("summary_lines")]
-    for name in names:
-        block = results.get(name)
-        if not block:
-            continue
-        title = known.get(name) or name.replace("_", " ").capitalize()
-        try:
-            part = [_p(title, styles["h2"])]
-            if name == "simulation":
-                part.extend(_simulation_figure(curves.get("simulation"), styles, counter))
-            part.extend(_generic_block(block, styles))
-            if name == "uncertainty":
-                part.extend(_sensitivity_figure(curves.get("uncertainty"), styles, counter))
-        except Exception as exc:  # an optional block never stops the report; say so in it
-            part = [_p(title, styles["h2"]),
-                    _p(f"This block could not be laid out ({escape(type(exc).__name__)}); see "
-                       f"the --json output (results.{escape(name)}) for its figures.",
-                       styles["body"])]
-        story.extend(part)
-    return story
-
-
-def _simulation_figure(curve, styles, counter):
-    """Normal-operation temperature and MTSR(t) over the run, when the simulation gives them."""
-    if not isinstance(curve, dict):
-        return []
-    time = _first_array(curve, ("time_s",))
-    mtsr = _first_array(curve, ("mtsr_K",))
-    if time is None or mtsr is None or len(time) != len(mtsr) or len(time) < 2:
-        return []
-    temperature = _first_array(curve, ("temperature_K",))
-    series = [("MTSR if the cooling fails at this moment (feed stopped)", mtsr, "accent")]
-    if temperature is not None and len(temperature) == len(time):
-        series.insert(0, ("temperature in normal operation", temperature, "ink"))
-    drawing = figures.run_profile(time, series, levels_k={"MTT": curve.get("mtt_K")},
-                                  marker_time_s=curve.get("worst_failure_time_s"))
-    return [_figure_block(
-        drawing, next(counter), "Temperature and MTSR over the run.",
-        "Simulated temperature of the mass in normal operation (solid) and the MTSR reached if "
-        "the cooling failed at that moment with the feed stopped (dashed). Read the worst moment "
-        "for a failure (the highest point of the dashed line, marked) and its distance from the "
-        "MTT.", styles)]
-
-
-def _generic_block(block, styles):
-    """A result member of an optional analysis: its summary lines (as printed by ``check``),
-    its method text and its tables; all figures only when it has no summary lines."""
-    from reportlab.platypus import XPreformatted
-
-    story = []
-    if isinstance(block, dict):
-        summary = block.get("summary_lines") or []
-        if summary:
-            text = "\n".join(escape(str(line)).replace(" degC", " °C") for line in summary)
-            story.append(XPreformatted(text, styles["mono_block"]))
-        for key in ("method", "methods", "reason"):
-            if isinstance(block.get(key), str) and block[key]:
-                story.append(_p(f"<b>{escape(key.capitalize())}:</b> {prose(block[key])}",
-                                styles["small"]))
-        if not summary:
-            scalars = [(key, value) for key, value in block.items()
-                       if key not in ("method", "methods", "reason")
-                       and not isinstance(value, (dict, list, tuple))]
-            if scalars:
-                rows = [["Figure (as in --json)", "Value"]] + [
-                    [_p(escape(k), styles["cell"]), _p(escape(format_generic(v)), styles["cell"])]
-                    for k, v in scalars]
-                story.append(_table(rows, [80 * MM, FRAME_WIDTH - 80 * MM]))
-            for key, value in block.items():
-                if isinstance(value, dict) and value and all(
-                        not isinstance(v, (dict, list)) for v in value.values()):
-                    story.append(_p(escape(key.replace("_", " ")), styles["small"]))
-                    rows = [["", "Value"]] + [[escape(str(k)), _p(escape(format_generic(v)),
-                                                                  styles["cell"])]
-                                              for k, v in value.items()]
-                    story.append(_table(rows, [80 * MM, FRAME_WIDTH - 80 * MM]))
-        for key, value in block.items():
-            if isinstance(value, list) and value and all(isinstance(v, dict) for v in value):
-                story.append(_p(escape(key.replace("_", " ")), styles["small"]))
-                story.append(_records_table(value, styles))
-    elif isinstance(block, list) and block and all(isinstance(v, dict) for v in block):
-        story.append(_records_table(block, styles))
-    return story
-
-
-def _records_table(records, styles, max_columns=7):
-    columns = []
-    for record in records:
-        for key, value in record.items():
-            if key not in columns and not isinstance(value, (dict, list)):
-                columns.append(key)
-    columns = columns[:max_columns]
-    rows = [[_p(f"<b>{escape(c.replace('_', ' '))}</b>", styles["cell"]) for c in columns]]
-    for record in records:
-        rows.append([_p(escape(format_generic(record.get(c))), styles["cell"]) for c in columns])
-    width = FRAME_WIDTH / max(len(columns), 1)
-    return _table(rows, [width] * len(columns), font_size=7.5)
-
-
-def _sensitivity_figure(curve, styles, counter):
-    names = values = None
-    if isinstance(curve, dict):
-        source = curve.get("sensitivity", curve)
-        if isinstance(source, dict) and all(isinstance(v, (int, float)) for v in source.values()):
-            names, values = list(source), list(source.values())
-        elif "names" in curve and "values" in curve:
-            names, values = list(curve["names"]), list(curve["values"])
-    elif isinstance(curve, (list, tuple)) and curve and all(len(item) == 2 for item in curve):
-        names, values = [n for n, _ in curve], [v for _, v in curve]
-    if not names:
-        return []
-    label = curve.get("label", "sensitivity [-]") if isinstance(curve, dict) else "sensitivity [-]"
-    drawing = figures.sensitivity_bars(names, values, label)
-    return [_figure_block(drawing, next(counter), "Sensitivity ranking of the inputs.",
-                          "Which uncertain input moves the result most (bar length); hatched "
-                          "bars act in the opposite direction. Improve the data of the top "
-                          "inputs first.", styles)]
 
 
 # --------------------------------------------------------------------------------------------
@@ -800,11 +712,18 @@ def _figure_methods(result) -> dict[str, str]:
         "figure: TMRad curve": "The TMRad method above, evaluated on a grid of start "
                                "temperatures; 8 h and 24 h lines give T<sub>D8</sub> and "
                                "T<sub>D24</sub>.",
-        "figure: temperature course": "Adiabatic integration of the decomposition kinetics from "
-                                      "MTSR with constant c'<sub>p</sub>, φ = 1: "
-                                      "c'<sub>p</sub> dT/dt = q(T, α); the synthesis rise "
-                                      "T<sub>p</sub> → MTSR taken as instantaneous.",
     }
+    if _simulated_courses(result) is not None:
+        methods["figure: temperature course"] = (
+            "Continuation of the cooling-failure simulation from its state at the worst failure "
+            "time: synthesis and decomposition kinetics integrated together, adiabatic "
+            "(φ = 1), with the feed stopped and with the feed continuing (see the simulation "
+            "method above).")
+    else:
+        methods["figure: temperature course"] = (
+            "Adiabatic integration of the decomposition kinetics from MTSR with constant "
+            "c'<sub>p</sub>, φ = 1: c'<sub>p</sub> dT/dt = q(T, α); the synthesis rise "
+            "T<sub>p</sub> → MTSR taken as instantaneous.")
     if result.results.get("vessels"):
         methods["figure: Semenov diagram"] = (
             "Generation m q(T), zero order at the fresh-mass rate, against removal "
@@ -829,7 +748,9 @@ def _assumptions(result) -> list[str]:
         f"<b>Synthesis.</b> {escape(results.get('mode', ''))}; the accumulated heat "
         f"(X<sub>ac</sub> = {format_ratio(results.get('accumulation'))}, mass ratio "
         f"{format_ratio(results.get('accumulation_mass_ratio'))}) is released at once at the "
-        f"failure (MTSR).",
+        f"failure (MTSR)" + ("; the cooling-failure simulation computes the course at the "
+                             "simulated rate instead (see its block)." if
+                             isinstance(results.get("simulation"), dict) else "."),
         f"<b>Kinetics model.</b> Decomposition as a single "
         f"{escape(results.get('decomposition_model', ''))} reaction with one activation energy "
         f"over the whole temperature range; impurities, induction periods or other reactions "
@@ -854,13 +775,30 @@ def _assumptions(result) -> list[str]:
     else:
         items.append("<b>Extrapolation.</b> The case does not state the measured temperature "
                      "range of the kinetics: the extent of extrapolation cannot be judged.")
-    items.append("<b>Not covered.</b> Gas production and pressure build-up, "
-                  "the capacity of relief or evaporative cooling (unless an optional block of this "
-                  "report assesses it), and any scenario other than loss of cooling.")
+    items.append(_not_covered(results))
     items.append("<b>Levels.</b> Severity and probability bands as published in the methods "
                   "above (bands from memory); the '100 K below the DSC onset' rule of thumb is "
                   "shown for information and never used for the verdict.")
     return items
+
+
+def _not_covered(results) -> str:
+    """What this report does not assess, given the optional blocks it carries."""
+    missing = []
+    if not isinstance(results.get("pressure"), dict):
+        missing.append("gas production and pressure build-up in a closed vessel")
+    missing.append("the sizing of a relief system")
+    barrier = results.get("barrier")
+    if not (isinstance(barrier, dict) and barrier.get("assessed")):
+        missing.append("the capacity of evaporative cooling (condenser, vapour line)")
+    scenarios = results.get("scenarios")
+    if isinstance(scenarios, dict) and scenarios.get("run", True) and scenarios.get("rows"):
+        missing.append("deviations other than loss of cooling and those in the scenario table")
+    else:
+        missing.append("any scenario other than loss of cooling")
+    if not isinstance(results.get("uncertainty"), dict):
+        missing.append("the uncertainty of the input data (no Monte Carlo run)")
+    return "<b>Not covered.</b> " + "; ".join(missing).capitalize() + "."
 
 
 def _data_quality_notes(result) -> list[str]:
@@ -973,8 +911,6 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
     int
         The number of pages.
     """
-    import itertools
-
     from reportlab.lib.pagesizes import A4
     from reportlab.platypus import CondPageBreak, SimpleDocTemplate, Spacer
 
@@ -991,7 +927,7 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
         topMargin=MARGIN_TOP, bottomMargin=MARGIN_BOTTOM, title=f"{REPORT_TITLE}: {case['title']}",
         author=case.get("author") or "", subject="Thermal runaway screening (screening aid only)",
         creator=f"{data['tool']['name']} {data['tool']['version']}", invariant=True)
-    counter = itertools.count(1)
+    counter = FigureCounter()
     story = []
     story.extend(_title_block(result, data, styles))
     story.append(_caution_block(result, styles))
@@ -1003,8 +939,9 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
     story.append(_p("Temperatures with 1 decimal in °C, differences with 1 decimal in K, times "
                     "with 3 significant digits in h.", styles["small"]))
     story.extend(_warnings_block(result, styles))
-    # The figures start on a new page unless the warnings spilled over onto one.
-    story.append(CondPageBreak(0.8 * document.height))
+    # The figures start on a new page unless the warnings spilled over onto one and left room
+    # for the heading and the first figure or two.
+    story.append(CondPageBreak(0.6 * document.height))
     story.extend(_figures_section(result, styles, counter))
     story.append(CondPageBreak(0.5 * document.height))
     story.extend(_inputs_section(result, data, styles))

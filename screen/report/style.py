@@ -104,6 +104,12 @@ def paragraph_styles() -> dict:
         "cell_tight": ParagraphStyle("cell_tight", parent=base, fontSize=8, leading=9),
         "cell_bold": ParagraphStyle("cell_bold", parent=base, fontName=FONT_BOLD, fontSize=8,
                                     leading=10),
+        "cell_right": ParagraphStyle("cell_right", parent=base, fontSize=8, leading=10,
+                                     alignment=2),
+        "cell_head": ParagraphStyle("cell_head", parent=base, fontName=FONT_BOLD, fontSize=7.5,
+                                    leading=9),
+        "cell_head_right": ParagraphStyle("cell_head_right", parent=base, fontName=FONT_BOLD,
+                                          fontSize=7.5, leading=9, alignment=2),
         "cell_mono": ParagraphStyle("cell_mono", parent=base, fontName=FONT_MONO, fontSize=7.5,
                                     leading=9.5),
         "caption": ParagraphStyle("caption", parent=base, fontName=FONT_ITALIC, fontSize=8,
@@ -134,6 +140,15 @@ def paragraph_styles() -> dict:
                                      leftIndent=4),
         "bullet": ParagraphStyle("bullet", parent=base, fontSize=8.5, leading=11,
                                  leftIndent=10, bulletIndent=0, spaceAfter=2),
+        "block_intro": ParagraphStyle("block_intro", parent=base, spaceAfter=4),
+        "note_after": ParagraphStyle("note_after", parent=base, fontSize=7.5, leading=9.5,
+                                     spaceBefore=2, spaceAfter=6),
+        "bullet_sub": ParagraphStyle("bullet_sub", parent=base, fontSize=8, leading=10.5,
+                                     leftIndent=22, bulletIndent=13, spaceAfter=1),
+        "bullet_small": ParagraphStyle("bullet_small", parent=base, fontSize=7.5, leading=10,
+                                       leftIndent=10, bulletIndent=0, spaceAfter=1.5),
+        "h3": ParagraphStyle("h3", parent=base, fontName=FONT_BOLD, fontSize=8.5, leading=11,
+                             spaceBefore=5, spaceAfter=2, keepWithNext=1),
     }
     return styles
 
@@ -148,11 +163,13 @@ def escape(text) -> str:
 
 
 def prose(text) -> str:
-    """Escape engine text for a Paragraph and typeset it: ``degC`` as °C, ``T_NR`` as T with a
-    subscript. Figures and words are left as they are."""
+    """Escape engine text for a Paragraph and typeset it: ``degC`` as °C, `` -> `` as an arrow,
+    ``>=`` and ``<=`` as ≥ and ≤,
+    ``T_NR`` as T with a subscript. Figures and words are left as they are."""
     import re
 
-    text = escape(text).replace(" degC", " °C")
+    text = (escape(text).replace(" degC", " °C").replace(" -&gt; ", " → ")
+            .replace(" &gt;= ", " ≥ ").replace(" &lt;= ", " ≤ "))
     return re.sub(r"(?<![A-Za-z0-9_.])T_([A-Za-z0-9]+)", r"T<sub>\1</sub>", text)
 
 
