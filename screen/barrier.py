@@ -599,10 +599,6 @@ def add_barrier(case, result, curves: bool = False) -> None:
         triggers.append(f"criticality class {klass}")
     if requested:
         triggers.append("requested (scenarios.evaporation_check)")
-    simulation = r.get("simulation") if isinstance(r.get("simulation"), dict) else {}
-    if simulation.get("time_to_mtt_feed_continuing_h") is not None:
-        triggers.append("the simulation reaches the MTT if the feed continues after the "
-                        "cooling failure")
     heading = f"Evaporative-cooling barrier at the MTT ({mtt - ZERO_CELSIUS:.1f} degC)"
     if not triggers:
         reason = (f"not assessed: MTSR {mtsr - ZERO_CELSIUS:.1f} degC stays below the MTT "
