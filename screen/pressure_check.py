@@ -311,7 +311,8 @@ def _summary_lines(r: dict) -> list[str]:
                      f"{entry['vapour_pressure_bar']:8.3g} bar{flag}")
     for vessel in r["vessels"]:
         lines.append(f"  closed {vessel['vessel'][:30]}: {vessel['total_bar']:.3g} bar(a) at "
-                     f"{vessel['temperature_degC']:.0f} degC -> {vessel['verdict']}")
+                     f"{vessel['temperature_degC']:.0f} degC")
+        lines.append(f"    -> {vessel['verdict']}")
         lines.append(f"    vapour {vessel['vapour_bar']:.3g} + pad gas {vessel['pad_gas_bar']:.3g}"
                      f" + decomposition gas {vessel['decomposition_gas_bar']:.3g} bar; headspace "
                      f"{vessel['headspace_m3']:.3g} m3")
