@@ -102,7 +102,7 @@ def perry_boiling_point(cas, pressure):
 
     row = Psat_data_Perrys2_8.loc[cas]
     return brentq(lambda t: dippr.EQ101(t, row.C1, row.C2, row.C3, row.C4, row.C5) - pressure,
-                  row.Tmin, row.Tmax)
+                  row.Tmin, row.Tmax, xtol=1e-10)
 
 
 def perry_latent_heat(cas, temperature, molar_mass):
@@ -126,7 +126,8 @@ SOLVENTS = [("water", "7732-18-5"), ("methanol", "67-56-1"), ("ethanol", "64-17-
 def test_boiling_point_and_latent_heat_through_the_engine_against_chemicals(name, cas):
     """MTT = boiling point at 1.01325 bar and the barrier's latent heat at it.
 
-    Sources (chemicals): brentq root of Perry's Table 2-8 EQ101 within 0.1 K; tabulated normal
+    Sources (chemicals): brentq root of Perry's Table 2-8 EQ101 within 1e-6 K (the solvent table
+    holds the same coefficients, so only root-finding tolerance separates them); tabulated normal
     boiling point (chemicals.phase_change.Tb) within 1.5 K (separate compilations differ by up to
     1.2 K); Perry's Table 2-150 EQ106 latent heat at that temperature within 2.5 %.
     """
@@ -138,7 +139,7 @@ def test_boiling_point_and_latent_heat_through_the_engine_against_chemicals(name
     mtt = result.results["mtt_degC"] + ZERO_CELSIUS
     barrier = result.results["barrier"]
     assert barrier["assessed"] is True
-    assert mtt == pytest.approx(perry_boiling_point(cas, STANDARD_ATMOSPHERE), abs=0.1)
+    assert mtt == pytest.approx(perry_boiling_point(cas, STANDARD_ATMOSPHERE), abs=1e-6)
     assert mtt == pytest.approx(Tb(cas), abs=1.5)
     molar_mass = molecular_weight(simple_formula_parser(search_chemical(cas).formula)) / 1000.0
     expected = perry_latent_heat(cas, mtt, molar_mass)
@@ -181,12 +182,15 @@ def test_vapour_mass_flow_and_solvent_evaporated_from_an_energy_balance():
 
 def test_vapour_flow_integrated_over_time_equals_heat_over_latent_heat():
     """The vapour flow integrated with scipy solve_ivp over one hour equals Q t / dh_v (first law,
-    constant rate and latent heat)."""
+    constant rate and latent heat). Q is computed independently from the test inputs (Arrhenius
+    scaling, see independent_heat_release_rate); dh_v is the barrier's own value, checked
+    against Perry's Table 2-150 in the tests above, so the balance itself is checked to 1e-8."""
     from scipy.integrate import solve_ivp
 
     _, result = screened(raw_case())
     vessel = result.results["barrier"]["vessels"][0]
-    heat_rate = vessel["heat_release_rate_at_mtt_kW"] * 1e3
+    heat_rate = independent_heat_release_rate(result.results["mtt_degC"] + ZERO_CELSIUS,
+                                              result.results["mtsr_degC"] + ZERO_CELSIUS)
     latent = vessel["latent_heat_kJ_per_kg"] * 1e3
     solution = solve_ivp(lambda t, m: [heat_rate / latent], (0.0, 3600.0), [0.0], rtol=1e-10)
     assert solution.y[0, -1] == pytest.approx(vessel["vapour_mass_flow_kg_per_h"], rel=1e-8)

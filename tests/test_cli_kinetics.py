@@ -108,6 +108,21 @@ def peak_temperature_of(beta):
     return temp[i] + 0.5 * step * (y0 - y2) / (y0 - 2 * y1 + y2)
 
 
+def townsend_tou_td24(ln_q_inf, activation_energy, specific_heat):
+    """Start temperature [K] at which c'p R T^2/(q(T) E) = 24 h, q(T) = exp(ln_q_inf - E/RT).
+
+    Townsend & Tou, Thermochim. Acta 37 (1980) 1-30 (zero order), root by scipy brentq on the
+    falling branch (below E/(2R)).
+    """
+    from scipy.optimize import brentq
+
+    def residual(temperature):
+        ln_q = ln_q_inf - activation_energy / (GAS_CONSTANT * temperature)
+        return (math.log(specific_heat * GAS_CONSTANT * temperature**2 / activation_energy)
+                - ln_q - math.log(86400.0))
+    return brentq(residual, 150.0, 0.999 * activation_energy / (2.0 * GAS_CONSTANT), xtol=1e-12)
+
+
 def assert_one_line_error(result, fragment):
     assert result.exit_code == 2, result.output
     err = result.stderr.strip()
@@ -139,7 +154,14 @@ def test_peaks_json_recovers_first_order_energy(tmp_path, runner):
     assert data["friedman"]["available"] is False
     assert data["model"]["name"] == "nth-order" and data["model"]["order"] == 1.0
     assert data["energy"]["mean_J_per_g"] == pytest.approx(800.0)
-    assert data["td24"]["kinetics"]["temperature_degC"] is not None
+    # TD24 from the recovered kinetics, against brentq on the zero-order Townsend & Tou (1980)
+    # formula written out here with the simulation's TRUE parameters and the assumptions the
+    # tool states (q = Q A f_max exp(-E/RT), f_max = 1, c'p = 1.5 kJ/(kg K)). E is recovered to
+    # about 1e-5 here, so 0.1 K.
+    td24 = data["td24"]["kinetics"]
+    assert "1.5 kJ/(kg K)" in td24["assumptions"] and "f_max = 1" in td24["assumptions"]
+    expected = townsend_tou_td24(math.log(TRUTH_Q * TRUTH_A), TRUTH_E, 1500.0)
+    assert td24["temperature_degC"] + 273.15 == pytest.approx(expected, abs=0.1)
     assert any("500 J/g" in w for w in data["warnings"])
     assert len(data["cautions"]) >= 3
 
@@ -215,6 +237,13 @@ def test_onset_only_crude_estimate(runner, tmp_path):
     crude = data["td24"]["crude"]
     assert crude["label"] == "crude screening estimate"
     assert crude["temperature_degC"] < 185.0 - 50.0
+    # Value: the stated assumptions (Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41,
+    # from memory: zero order, E = 50 kJ/mol, q(onset) = 20 W/kg detection limit, c'p 1.5
+    # kJ/(kg K)) put through brentq on the Townsend & Tou (1980) formula written out here.
+    energy, onset = 50e3, 185.0 + 273.15
+    ln_q_inf = math.log(20.0) + energy / (GAS_CONSTANT * onset)
+    expected = townsend_tou_td24(ln_q_inf, energy, 1500.0)
+    assert crude["temperature_degC"] + 273.15 == pytest.approx(expected, abs=1e-6)
     assert "50 kJ/mol" in crude["assumptions"] and "20 W/kg" in crude["assumptions"]
     section = tomllib.loads(out.read_text())["decomposition"]
     assert section["model"] == "zero-order" and section["activation_energy"] == "50 kJ/mol"
@@ -236,7 +265,15 @@ def test_single_thermogram_gives_crude_estimate_only(tmp_path, runner):
     data = json.loads(result.stdout)
     assert data["kissinger"]["available"] is False
     assert data["model"]["name"] == "zero-order"
-    assert data["td24"]["crude"]["temperature_degC"] is not None
+    crude = data["td24"]["crude"]
+    # The crude TD24 follows from the onset read off the run under the stated assumptions
+    # (Keller et al. 1997, from memory: zero order, 50 kJ/mol, 20 W/kg at the onset, c'p 1.5
+    # kJ/(kg K)), through brentq on the Townsend & Tou (1980) formula written out here.
+    onset = crude["onset_used_degC"] + 273.15
+    expected = townsend_tou_td24(math.log(20.0) + 50e3 / (GAS_CONSTANT * onset), 50e3, 1500.0)
+    assert crude["temperature_degC"] + 273.15 == pytest.approx(expected, abs=1e-6)
+    # The onset read lies before the simulated peak (first order, onset below the maximum).
+    assert onset < peak_temperature_of(4.0)
 
 
 def test_command_line_mass_and_rate(tmp_path, runner):

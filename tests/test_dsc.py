@@ -401,6 +401,22 @@ def test_crude_td24_assumptions_and_monotonicity():
     assert td < onset - 50.0
 
 
+def test_townsend_tou_time_to_maximum_rate_hand_value():
+    # Townsend & Tou (1980): TMRad = c'p R T^2/(q E). Hand-worked: c'p = 1800 J/(kg K),
+    # T = 400 K, q(400 K) = 0.1 W/kg, E = 100 kJ/mol -> 1800 x 8.314462618 x 400^2/(0.1 x 1e5)
+    # = 239456.5234 s (R from the CODATA 2018 exact value, from memory).
+    energy = 100e3
+    ln_q_inf = math.log(0.1) + energy / (8.314462618 * 400.0)
+    value = dsc.townsend_tou_time_to_maximum_rate(400.0, ln_q_inf, energy, 1800.0)
+    assert float(value) == pytest.approx(239456.52339, rel=1e-9)
+    # Arrays: each element is the scalar formula (q written out here).
+    temps = np.array([380.0, 420.0])
+    q = 0.1 * np.exp(-energy / R * (1.0 / temps - 1.0 / 400.0))
+    np.testing.assert_allclose(dsc.townsend_tou_time_to_maximum_rate(temps, ln_q_inf, energy,
+                                                                     1800.0),
+                               1800.0 * R * temps**2 / (q * energy), rtol=1e-12)
+
+
 def test_townsend_tou_rejects_bad_input():
     with pytest.raises(ModelDomainError):
         dsc.townsend_tou_time_to_maximum_rate(400.0, 20.0, -1.0, 1500.0)

@@ -140,7 +140,9 @@ def test_classical_criterion_is_conservative(critical):
     target = 0.99 / math.e
     t_c = brentq(lambda t: semenov.semenov_number(MASS, UA, t, *ARGS) - target, 250.0, critical.critical_coolant_temperature)
     assert t_c < critical.critical_coolant_temperature
-    assert semenov.stable_operating_temperature(MASS, UA, t_c, *ARGS) is not None
+    stable = semenov.stable_operating_temperature(MASS, UA, t_c, *ARGS)
+    assert stable is not None
+    assert stable == pytest.approx(independent_intersections(t_c)[0], abs=1e-8)
 
 
 def test_linearised_versus_exact_critical_rise(critical):

@@ -187,7 +187,18 @@ def test_synthesis_rate_at_mtt_of_adiabatic_batch(tmp_path):
     k = 2e-4 * math.exp(-70e3 / GAS_CONSTANT * (1.0 / mtt - 1.0 / 313.15))
     expected = 100e3 * k * 1000.0 * (1.0 - conversion) / 1000.0
     assert sim["synthesis_heat_release_rate_at_mtt_W_per_kg"] == pytest.approx(expected, rel=1e-3)
-    assert sim["time_to_mtt_h"] is not None and sim["time_to_mtt_h"] > 0.0
+    # Time from the failure (worst at t = 0 in a batch) to the MTT: with T = T0 + dT_ad X the
+    # first-order batch gives t = int_0^X_mtt dX / (k(T(X)) (1 - X)), here by scipy quad
+    # (general-purpose reference library). 1e-5 relative (solver tolerance of the simulation).
+    from scipy.integrate import quad
+
+    def k_of(temperature):
+        return 2e-4 * math.exp(-70e3 / GAS_CONSTANT * (1.0 / temperature - 1.0 / 313.15))
+
+    time_to_mtt, _ = quad(lambda x: 1.0 / (k_of(313.15 + rise * x) * (1.0 - x)), 0.0,
+                          conversion, epsabs=0.0, epsrel=1e-12)
+    assert sim["worst_failure_time_h"] == pytest.approx(0.0, abs=1e-9)
+    assert sim["time_to_mtt_h"] * HOUR == pytest.approx(time_to_mtt, rel=1e-5)
 
 
 def test_feed_continuing_from_start_ends_at_mixing_temperature(example_json):
@@ -411,7 +422,7 @@ def test_parse_feed_profile_rejects(text, fragment):
 
 
 # ------------------------------------------------------------------------------------------------
-# Decomposition heat source (regression against the reference implementation of the project)
+# Decomposition heat source (written-out rate law, and consistency with the kinetics object)
 # ------------------------------------------------------------------------------------------------
 
 
@@ -421,20 +432,33 @@ def test_parse_feed_profile_rejects(text, fragment):
     ("zero-order", {"order": 0.0}),
 ])
 def test_decomposition_source_equals_kinetics_rate(model, extra):
-    # Consistency with DecompositionKinetics.heat_release_rate (the same law in log space), not
-    # an outside check: the fast scalar path must not change the numbers.
+    # Expected side written out here: q(T, a) = Q/(1 - a0) A exp(-E/(R T)) a^m (1 - a)^n
+    # (extended Prout-Tompkins form, Sestak & Berggren, Thermochim. Acta 3 (1971) 1), with A
+    # fixed by the fresh-mass rate q_ref = 1 W/kg at 450 K, i.e.
+    # q(T, a) = q_ref exp(-(E/R)(1/T - 1/T_ref)) f(a)/f(a0). Also consistent with
+    # DecompositionKinetics.heat_release_rate (the fast scalar path must not change numbers).
     from screen.models.decomposition import DecompositionKinetics
 
     kinetics = DecompositionKinetics.from_reference_rate(model, 400e3, 120e3, 1.0, 450.0,
                                                          **extra)
     source = DecompositionSource(kinetics)
+    n = extra.get("order", 0.0)
+    m = extra.get("autocatalytic_order", 0.0)
+    a0 = extra.get("initial_conversion", 0.0)
+
+    def shape(a):
+        return (a**m if m else 1.0) * (1.0 - a) ** n
+
     temperatures = np.array([300.0, 400.0, 450.0, 520.0])
     conversions = np.array([0.02, 0.1, 0.5, 0.9])
     for temperature in temperatures:
         for conversion in conversions:
+            written_out = (1.0 * math.exp(-120e3 / GAS_CONSTANT * (1.0 / temperature - 1.0 / 450.0))
+                           * shape(conversion) / shape(a0))
+            got = source.heat_release_rate(float(temperature), float(conversion))
+            assert got == pytest.approx(written_out, rel=1e-11)
             expected = float(kinetics.heat_release_rate(temperature, conversion))
-            assert source.heat_release_rate(float(temperature), float(conversion)) == (
-                pytest.approx(expected, rel=1e-12))
+            assert got == pytest.approx(expected, rel=1e-12)
     vector = source.heat_release_rate(temperatures, conversions)
     assert np.allclose(vector, kinetics.heat_release_rate(temperatures, conversions), rtol=1e-12)
     # Design: the heat release stops once the mass is fully decomposed (zero order included).

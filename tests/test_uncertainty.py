@@ -328,6 +328,20 @@ def test_samples_without_td24_count_as_class_5():
     block = unc.add_uncertainty(result, samples=2000, seed=1)
     missing = block["td24_no_root_samples"]
     assert 200 < missing < 1800
+    # Independent expectation: E/(2R) = 2405 K lies above 1500 K, so the Townsend & Tou (1980)
+    # TMRad falls over the whole search range and a sample has no TD24 exactly when
+    # TMRad(1500 K) > 24 h, i.e. q_ref below q_crit (solved by hand from c'p R T^2/(q E) = 24 h
+    # with q(1500 K) = q_ref exp(-(E/R)(1/1500 - 1/500))). ln q_ref is normal with sd ln 10
+    # ("lognormal factor 10"), so the expected share is Phi(ln(q_crit/0.05)/ln 10); binomial
+    # sampling error, 4 standard deviations.
+    from scipy.constants import R as codata_r
+    from scipy.stats import norm
+
+    activation, cp, top = 40e3, 1800.0, 1500.0
+    q_crit = (cp * codata_r * top**2 / (activation * 86400.0)
+              / math.exp(-activation / codata_r * (1.0 / top - 1.0 / 500.0)))
+    share = norm.cdf(math.log(q_crit / 0.05) / math.log(10.0))
+    assert missing / 2000 == pytest.approx(share, abs=4.0 * math.sqrt(share * (1 - share) / 2000))
     assert block["class_probabilities"]["5"] >= missing / 2000
     assert block["td24_degC"]["p5"] is None  # the lower percentiles are undefined, not hidden
     assert "fail closed" in result.results["verdict"]

@@ -9,6 +9,28 @@ from __future__ import annotations
 
 import numpy as np
 
+from screen.errors import ModelDomainError
+
+
+def _checked(name, value, low=None, high=None, low_open=False, unit=""):
+    """Array of ``value`` after a domain check (raises ModelDomainError, never returns NaN)."""
+    array = np.asarray(value, dtype=float)
+    bad = ~np.isfinite(array)
+    if low is not None:
+        bad |= (array <= low) if low_open else (array < low)
+    if high is not None:
+        bad |= array > high
+    if np.any(bad):
+        first = array[bad].flat[0] if array.ndim else float(array)
+        bounds = []
+        if low is not None:
+            bounds.append(("> " if low_open else ">= ") + f"{low:g}")
+        if high is not None:
+            bounds.append(f"<= {high:g}")
+        raise ModelDomainError(f"{name} must be finite and {' and '.join(bounds) or 'finite'}"
+                               f"{' ' + unit if unit else ''}, got {first!r}")
+    return array
+
 
 def adiabatic_temperature_rise(specific_energy, specific_heat):
     """Adiabatic temperature rise dT_ad = Q'/c'p.
@@ -30,7 +52,9 @@ def adiabatic_temperature_rise(specific_energy, specific_heat):
     >>> round(adiabatic_temperature_rise(180e3, 1800.0), 6)
     100.0
     """
-    return np.asarray(specific_energy, dtype=float) / np.asarray(specific_heat, dtype=float) * 1.0
+    energy = _checked("specific_energy", specific_energy, unit="J/kg")
+    heat = _checked("specific_heat", specific_heat, 0.0, low_open=True, unit="J/(kg K)")
+    return energy / heat
 
 
 def specific_energy_from_molar(molar_enthalpy, limiting_amount, mass):
@@ -50,7 +74,10 @@ def specific_energy_from_molar(molar_enthalpy, limiting_amount, mass):
     float
         [J/kg]
     """
-    return -np.asarray(molar_enthalpy, dtype=float) * limiting_amount / mass
+    enthalpy = _checked("molar_enthalpy", molar_enthalpy, unit="J/mol")
+    amount = _checked("limiting_amount", limiting_amount, 0.0, unit="mol")
+    final_mass = _checked("mass", mass, 0.0, low_open=True, unit="kg")
+    return -enthalpy * amount / final_mass
 
 
 def maximum_temperature_synthesis_reaction(process_temperature, adiabatic_rise, accumulation,
@@ -82,6 +109,9 @@ def maximum_temperature_synthesis_reaction(process_temperature, adiabatic_rise, 
     >>> float(maximum_temperature_synthesis_reaction(350.0, 100.0, 0.3, 0.75))
     390.0
     """
-    return (np.asarray(process_temperature, dtype=float)
-            + np.asarray(accumulation, dtype=float) * np.asarray(adiabatic_rise, dtype=float)
-            / np.asarray(mass_ratio, dtype=float))
+    temperature = _checked("process_temperature", process_temperature, 0.0, low_open=True,
+                           unit="K")
+    rise = _checked("adiabatic_rise", adiabatic_rise, 0.0, unit="K")
+    fraction = _checked("accumulation", accumulation, 0.0, 1.0)
+    ratio = _checked("mass_ratio", mass_ratio, 0.0, 1.0, low_open=True)
+    return temperature + fraction * rise / ratio
