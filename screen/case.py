@@ -17,11 +17,22 @@ import os
 from dataclasses import dataclass, field
 from typing import Any
 
+from screen.constants import GAS_CONSTANT, ZERO_CELSIUS
 from screen.errors import CaseError
 from screen.units import ParsedQuantity, parse_dimensionless, parse_quantity
 
 #: Largest case file read [bytes]; a real case is a few kB.
 MAX_CASE_BYTES = 1_000_000
+
+#: Absolute temperatures accepted in a case file [K]: -200 degC to 1000 degC (design). Wider
+#: than any liquid reaction mass, coolant or calorimetric reference temperature; outside it the
+#: value is a typing or unit error, and Arrhenius factors leave floating-point range.
+TEMPERATURE_RANGE_K = (ZERO_CELSIUS - 200.0, ZERO_CELSIUS + 1000.0)
+
+#: Largest E/(R T) accepted [-]: exp(709.8) is the largest double, so exp(+-E/RT) beyond about
+#: 700 overflows or underflows (design). At 60 degC this is E = 1900 kJ/mol, far above the
+#: 30-400 kJ/mol of real reactions: only a unit error (J vs kJ) or a typing error gets there.
+MAX_ARRHENIUS_EXPONENT = 700.0
 
 
 @dataclass(frozen=True)
@@ -192,6 +203,62 @@ SCHEMA: dict[str, dict[str, Field]] = {
     "uncertainty": {},
 }
 
+#: Hard plausibility limits in SI (design), merged into SCHEMA below: generous ranges outside
+#: which a value is a typing or unit error ("1.8 km" for 1.8 m) and the models would leave
+#: floating-point range (divisions by near-zero lengths, masses of 1e300 kg). Narrower limits
+#: of a field stay; an exclusive minimum of 0 becomes the lower limit given here.
+PLAUSIBLE_LIMITS: dict[tuple[str, str], tuple[float | None, float | None]] = {
+    ("mass", "amount"): (1e-6, 1e7),  # 1 mg .. 10 000 t [kg]
+    ("mass", "density"): (1.0, 30000.0),  # [kg/m^3]
+    # Condensed matter lies within 0.1-20 kJ/(kg K); c'p divides every adiabatic rise.
+    ("mass", "specific_heat"): (100.0, 20000.0),  # [J/(kg K)]
+    ("synthesis", "energy"): (None, 1e8),  # [J/kg]
+    ("synthesis", "molar_enthalpy"): (-1e8, None),  # [J/mol]
+    ("synthesis", "limiting_amount"): (None, 1e10),  # [mol]
+    ("synthesis", "activation_energy"): (1e3, 1e6),  # 1 .. 1000 kJ/mol [J/mol]
+    ("decomposition", "energy"): (None, 1e8),
+    ("decomposition", "activation_energy"): (1e3, 1e6),
+    ("vessel", "batch_mass"): (1e-6, 1e7),
+    ("vessel", "heat_transfer_area"): (1e-6, 1e5),  # [m^2]
+    ("vessel", "heat_transfer_coefficient"): (1e-2, 1e5),  # [W/(m^2 K)]
+    ("vessel", "volume"): (1e-6, 1e4),  # 1 mL .. 10 000 m^3 [m^3]
+    ("vessel", "diameter"): (1e-3, 100.0),  # [m]
+    ("vessel", "jacket_height"): (1e-3, 100.0),
+    ("vessel", "heat_losses"): (None, 1e9),  # [W/K]
+    ("vessel", "headspace_volume"): (1e-6, 1e4),
+    ("vessel", "relief_set_pressure"): (1.0, 1e9),  # [Pa]
+    ("vessel", "condenser_duty"): (None, 1e10),  # [W]
+    ("vessel", "condenser_ua"): (None, 1e9),
+    ("vessel", "vapour_line_diameter"): (1e-3, 100.0),
+    ("synthesis_kinetics", "activation_energy"): (1e3, 1e6),
+    ("synthesis_kinetics", "molar_enthalpy"): (-1e8, None),
+    ("synthesis_kinetics", "initial_mass"): (1e-6, 1e7),
+    ("synthesis_kinetics", "initial_amount_a"): (None, 1e10),
+    ("synthesis_kinetics", "initial_amount_b"): (None, 1e10),
+    ("synthesis_kinetics", "feed_amount"): (None, 1e10),
+    ("synthesis_kinetics", "feed_mass"): (None, 1e7),
+    ("solvent", "pressure"): (1.0, 1e9),
+    ("solvent", "amount"): (None, 1e7),
+    ("solvent", "latent_heat"): (1.0, 1e8),
+    ("solvent", "gas_yield"): (None, 1e3),  # [mol/kg]; pure hydrogen is about 500 mol/kg
+}
+
+
+def _apply_plausible_limits() -> None:
+    import dataclasses
+
+    for (section, name), (low, high) in PLAUSIBLE_LIMITS.items():
+        spec = SCHEMA[section][name]
+        changes: dict[str, Any] = {}
+        if low is not None and (spec.minimum is None or low > spec.minimum):
+            changes.update(minimum=low, exclusive_minimum=False)
+        if high is not None and (spec.maximum is None or high < spec.maximum):
+            changes.update(maximum=high, exclusive_maximum=False)
+        SCHEMA[section][name] = dataclasses.replace(spec, **changes)
+
+
+_apply_plausible_limits()
+
 #: Sections whose keys are free-form (validated by the feature module, not by SCHEMA).
 FREE_FORM_SECTIONS = ("uncertainty",)
 
@@ -287,8 +354,12 @@ def read_case_text(path: str) -> tuple[dict, str]:
         if size > MAX_CASE_BYTES:
             raise CaseError(f"file is {size} bytes; a case file is at most {MAX_CASE_BYTES} bytes "
                             f"(is this the right file?)", path=str(path))
+        # Bounded read: a device or pipe reports size 0 but may never end (/dev/zero).
         with open(path, "rb") as handle:
-            data = handle.read()
+            data = handle.read(MAX_CASE_BYTES + 1)
+        if len(data) > MAX_CASE_BYTES:
+            raise CaseError(f"more than {MAX_CASE_BYTES} bytes; a case file is a small TOML text "
+                            f"file (is this the right file?)", path=str(path))
     except OSError as exc:
         raise CaseError(f"cannot read the file ({exc.strerror}); check the path and permissions",
                         path=str(path)) from None
@@ -297,7 +368,7 @@ def read_case_text(path: str) -> tuple[dict, str]:
         raise CaseError("file is empty; a case needs at least [case], [mass], [process], "
                         "[synthesis] and [decomposition] (copy one from cases/)", path=str(path))
     try:
-        text = data.decode("utf-8")
+        text = data.decode("utf-8-sig")  # a byte-order mark (Windows editors) is harmless
     except UnicodeDecodeError:
         raise CaseError("file is not UTF-8 text (a binary file?); save the case as UTF-8 TOML",
                         path=str(path)) from None
@@ -309,7 +380,36 @@ def read_case_text(path: str) -> tuple[dict, str]:
     except tomllib.TOMLDecodeError as exc:
         raise CaseError(f"TOML syntax error: {exc}; values with units must be quoted strings, "
                         f"e.g. energy = \"180 kJ/kg\"", path=str(path)) from None
+    except RecursionError:
+        parsed = None
+    if parsed is None or _nesting_depth(parsed) > MAX_NESTING_DEPTH:
+        raise CaseError(f"tables or arrays nested more than {MAX_NESTING_DEPTH} levels deep; a "
+                        f"case file has [section] tables of key = value lines (see cases/)",
+                        path=str(path))
     return parsed, digest
+
+
+#: Deepest nesting of tables and arrays accepted in a case file (a case needs 3) (design).
+MAX_NESTING_DEPTH = 8
+
+
+def _nesting_depth(value) -> int:
+    """Depth of nested dicts and lists, without recursion (deep input must not crash)."""
+    deepest = 0
+    stack = [(value, 0)]
+    while stack:
+        item, depth = stack.pop()
+        if isinstance(item, dict):
+            children = item.values()
+        elif isinstance(item, list):
+            children = item
+        else:
+            continue
+        deepest = max(deepest, depth + 1)
+        if deepest > MAX_NESTING_DEPTH:
+            return deepest
+        stack.extend((child, depth + 1) for child in children)
+    return deepest
 
 
 def _suggest(key: str, options) -> str:
@@ -336,6 +436,9 @@ def _apply_override(raw: dict, text: str) -> None:
             raw["vessel"] = vessels
         if not vessels:
             raise CaseError(f"--set {text!r}: the case has no [vessel]", key="--set")
+        if not isinstance(vessels, list) or not all(isinstance(v, dict) for v in vessels):
+            raise CaseError(f"--set {text!r}: vessel in the case is not a [vessel] table or "
+                            f"[[vessel]] tables", key="--set")
         if len(parts) == 3:
             try:
                 index = int(parts[1])
@@ -367,9 +470,38 @@ def _apply_override(raw: dict, text: str) -> None:
         except ValueError:
             converted = value  # "35 %" or "0.3 ± 0.05" is parsed later
     elif declared[name].kind == "bool":
-        converted = value.lower() in ("1", "true", "yes")
+        # Strict: a typo such as "ture" must not silently become false.
+        words = {"true": True, "yes": True, "1": True, "false": False, "no": False, "0": False}
+        if value.lower() not in words:
+            raise CaseError(f"--set {text!r}: {section}.{name} is true or false (yes/no, 1/0), "
+                            f"got {value!r}", key="--set")
+        converted = words[value.lower()]
     for target in targets:
         target[name] = converted
+
+
+def parse_field_quantity(spec: Field, raw_value, key: str, path: str | None = None
+                         ) -> ParsedQuantity:
+    """Parse the value of a numeric field (kind ``"number"``, ``"rate_constant"`` or a quantity
+    kind of :data:`screen.units.DIMENSIONS`) into SI; bounds are not checked here."""
+    if spec.kind == "number":
+        return parse_dimensionless(raw_value, key, path)
+    if spec.kind == "rate_constant":
+        errors = []
+        for kind in ("frequency", "second_order_rate_constant"):
+            try:
+                return parse_quantity(raw_value, kind, key, path)
+            except CaseError as exc:
+                errors.append(exc)
+        # Report the real problem (a non-finite value, a decimal comma ...) when the dimension
+        # of one kind matched; the generic hint only when neither dimension fits.
+        specific = [e for e in errors if "which is not a" not in e.message
+                    and "is not known" not in e.message]
+        if specific:
+            raise specific[-1]
+        raise CaseError(f"got {raw_value!r}; a rate constant is in 1/s (first order) or "
+                        f"m^3/(mol s), L/(mol s) (second order)", key, path) from None
+    return parse_quantity(raw_value, spec.kind, key, path)
 
 
 def _validate_value(name: str, spec: Field, raw_value, key: str, path: str,
@@ -390,34 +522,35 @@ def _validate_value(name: str, spec: Field, raw_value, key: str, path: str,
             raise CaseError(f"got {raw_value!r}; expected true or false", key, path)
         inputs.append(InputRecord(key, str(raw_value).lower(), raw_value, ""))
         return raw_value
-    if spec.kind == "number":
-        parsed = parse_dimensionless(raw_value, key, path)
-    elif spec.kind == "rate_constant":
-        try:
-            parsed = parse_quantity(raw_value, "frequency", key, path)
-        except CaseError:
-            try:
-                parsed = parse_quantity(raw_value, "second_order_rate_constant", key, path)
-            except CaseError:
-                raise CaseError(f"got {raw_value!r}; a rate constant is in 1/s (first order) or "
-                                f"m^3/(mol s), L/(mol s) (second order)", key, path) from None
-    else:
-        parsed = parse_quantity(raw_value, spec.kind, key, path)
+    parsed = parse_field_quantity(spec, raw_value, key, path)
     value = parsed.value
     low, high = spec.minimum, spec.maximum
     shown = raw_value if isinstance(raw_value, str) else repr(raw_value)
+    if spec.kind == "temperature":
+        check_temperature_range(value, shown, key, path)
+    unit = "" if parsed.si_unit in ("", "1") else f" {parsed.si_unit}"
     if low is not None and (value < low or (spec.exclusive_minimum and value == low)):
         relation = "above" if spec.exclusive_minimum else "at least"
-        raise CaseError(f"got {shown}; must be {relation} {low:g} ({spec.doc.lower() or name})",
-                        key, path)
+        raise CaseError(f"got {shown}; must be {relation} {low:g}{unit} "
+                        f"({spec.doc.lower() or name})", key, path)
     if high is not None and (value > high or (spec.exclusive_maximum and value == high)):
         relation = "below" if spec.exclusive_maximum else "at most"
-        raise CaseError(f"got {shown}; must be {relation} {high:g} ({spec.doc.lower() or name})",
-                        key, path)
+        raise CaseError(f"got {shown}; must be {relation} {high:g}{unit} "
+                        f"({spec.doc.lower() or name})", key, path)
     inputs.append(InputRecord(key, str(raw_value), value, parsed.si_unit))
     if parsed.std is not None:
         uncertainties[key] = parsed
     return value
+
+
+def check_temperature_range(value: float, shown: str, key: str, path: str | None) -> None:
+    """Raise CaseError unless an absolute temperature [K] lies in :data:`TEMPERATURE_RANGE_K`."""
+    low, high = TEMPERATURE_RANGE_K
+    if not (math.isfinite(value) and low <= value <= high):
+        raise CaseError(
+            f"got {shown} ({value:.6g} K); a temperature in a case file must lie between "
+            f"{low - ZERO_CELSIUS:.0f} degC and {high - ZERO_CELSIUS:.0f} degC: check the value "
+            f"and its unit (degC, K)", key, path)
 
 
 def _validate_table(section: str, table, key_prefix: str, path: str, inputs: list,
@@ -575,6 +708,7 @@ def _check_consistency(sections, vessels, path, warnings) -> None:
                         "onset_temperature, better energy, model and kinetics",
                         "decomposition", path)
     _check_decomposition(decomposition, path)
+    _check_arrhenius_range(sections, path)
 
     _run_extra_checks(sections, vessels, path, warnings)
 
@@ -622,6 +756,29 @@ def _run_extra_checks(sections, vessels, path, warnings) -> None:
 
     for target in EXTRA_CHECKS:
         resolve(target)(sections, vessels, path, warnings)
+
+
+def _check_arrhenius_range(sections, path) -> None:
+    """E/(R T) at the process and reference temperatures must stay in floating-point range."""
+    process = sections["process"]
+    for section_name in ("decomposition", "synthesis", "synthesis_kinetics"):
+        section = sections.get(section_name)
+        if section is None or section.get("activation_energy") is None:
+            continue
+        energy = float(section.get("activation_energy"))
+        temperatures = [("process.temperature", process.temperature)]
+        if section.get("reference_temperature") is not None:
+            temperatures.append((f"{section_name}.reference_temperature",
+                                 section.get("reference_temperature")))
+        for label, temperature in temperatures:
+            exponent = energy / (GAS_CONSTANT * float(temperature))
+            if exponent > MAX_ARRHENIUS_EXPONENT:
+                raise CaseError(
+                    f"E = {energy / 1000:.6g} kJ/mol gives E/(R T) = {exponent:.0f} at "
+                    f"{label} ({float(temperature) - ZERO_CELSIUS:.1f} degC), above "
+                    f"{MAX_ARRHENIUS_EXPONENT:.0f}: exp(-E/RT) leaves floating-point range. "
+                    f"Real activation energies are about 30-400 kJ/mol: check the value and its "
+                    f"unit (J/mol or kJ/mol)", f"{section_name}.activation_energy", path)
 
 
 def _check_decomposition(decomposition: Section, path: str) -> None:

@@ -30,10 +30,17 @@ def handle_errors(func):
 
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
+        import warnings
+
         from screen.errors import ScreenError
 
         try:
-            return func(*args, **kwargs)
+            with warnings.catch_warnings():
+                # Numerical warnings (overflow in a discarded branch ...) are not for the user:
+                # results are checked for finiteness, and stderr carries one line per error.
+                if not os.environ.get("RUNAWAY_SCREEN_DEBUG"):
+                    warnings.simplefilter("ignore")
+                return func(*args, **kwargs)
         except ScreenError as exc:
             _fail(exc.one_line())
         except (click.exceptions.Exit, click.ClickException, SystemExit, KeyboardInterrupt):
@@ -48,7 +55,40 @@ def handle_errors(func):
     return wrapper
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+class _OneLineUsageError(click.UsageError):
+    """A usage error (bad option, missing argument) shown as one line on stderr, exit status 2."""
+
+    def show(self, file=None):
+        command = self.ctx.command_path if self.ctx is not None else "runaway-screen"
+        click.echo(f"error: {' '.join(self.format_message().split())} (see '{command} --help')",
+                   err=True)
+
+
+class _Group(click.Group):
+    """Command group whose usage errors are one line, like every other error of the tool."""
+
+    @staticmethod
+    def _one_line(exc: click.UsageError) -> click.UsageError:
+        if isinstance(exc, _OneLineUsageError):
+            return exc
+        converted = _OneLineUsageError(exc.format_message(), exc.ctx)
+        converted.exit_code = exc.exit_code
+        return converted
+
+    def parse_args(self, ctx, args):
+        try:
+            return super().parse_args(ctx, args)
+        except click.UsageError as exc:
+            raise self._one_line(exc) from None
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except click.UsageError as exc:
+            raise self._one_line(exc) from None
+
+
+@click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="runaway-screen")
 def main():
     """Thermal-runaway screening of exothermic reactions from a TOML case file.

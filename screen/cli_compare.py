@@ -10,23 +10,67 @@ import click
 def _load_any(path, overrides=()):
     """A JSON-ready result dict from a case file (.toml) or an earlier ``--json`` output."""
     from screen.cli import run_check, timestamp
-    from screen.errors import DataFileError
 
     if str(path).lower().endswith(".json"):
-        try:
-            with open(path, encoding="utf-8") as handle:
-                data = json.load(handle)
-        except FileNotFoundError:
-            raise DataFileError("file not found; give a case file or an earlier --json result",
-                                path=str(path)) from None
-        except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
-            raise DataFileError(f"not a readable JSON result ({exc}); give a case file or the "
-                                f"output of 'check --json'", path=str(path)) from None
-        if not isinstance(data, dict) or "results" not in data or "inputs" not in data:
-            raise DataFileError("JSON without 'results' and 'inputs': not an output of "
-                                "'runaway-screen check --json'", path=str(path))
-        return data
+        return read_result_json(path)
     return run_check(path, overrides).to_json_dict(generated_at=timestamp())
+
+
+#: Largest earlier JSON result read [bytes]; a result of ``check --json`` is some 10-100 kB.
+MAX_RESULT_BYTES = 20_000_000
+
+
+def _reject_constant(name):
+    raise ValueError(f"{name} is not a JSON number")
+
+
+def read_result_json(path) -> dict:
+    """An earlier ``check --json`` output, checked for the members :mod:`screen.compare` uses.
+
+    Raises
+    ------
+    DataFileError
+        Missing, unreadable, too large, not JSON (NaN and Infinity are not JSON), or without
+        ``case`` (a table), ``results`` (a table) and ``inputs`` (rows with ``key``, ``as_read``
+        and ``value_si``).
+    """
+    import os
+
+    from screen.errors import DataFileError
+
+    path = str(path)
+    hint = "give a case file or the output of 'runaway-screen check --json'"
+    if not os.path.exists(path):
+        raise DataFileError("file not found; give a case file or an earlier --json result",
+                            path=path)
+    if os.path.isdir(path):
+        raise DataFileError(f"is a directory; {hint}", path=path)
+    try:
+        with open(path, "rb") as handle:  # bounded: a device such as /dev/zero never ends
+            raw = handle.read(MAX_RESULT_BYTES + 1)
+    except OSError as exc:
+        raise DataFileError(f"cannot be read ({exc.strerror}); {hint}", path=path) from None
+    if len(raw) > MAX_RESULT_BYTES:
+        raise DataFileError(f"more than {MAX_RESULT_BYTES} bytes; {hint}", path=path)
+    try:
+        data = json.loads(raw.decode("utf-8"), parse_constant=_reject_constant)
+    except (UnicodeDecodeError, ValueError, RecursionError) as exc:
+        message = " ".join(str(exc).split())[:120]
+        raise DataFileError(f"not a readable JSON result ({message}); {hint}",
+                            path=path) from None
+    if not isinstance(data, dict) or not isinstance(data.get("results"), dict) or not \
+            isinstance(data.get("inputs"), list):
+        raise DataFileError(f"JSON without the 'results' and 'inputs' members; {hint}",
+                            path=path)
+    if not isinstance(data.get("case"), dict):
+        raise DataFileError(f"JSON without the 'case' member; {hint}", path=path)
+    for number, row in enumerate(data["inputs"], start=1):
+        if not (isinstance(row, dict) and isinstance(row.get("key"), str)
+                and "as_read" in row and "value_si" in row):
+            raise DataFileError(f"inputs[{number}] lacks key, as_read or value_si; {hint}",
+                                path=path)
+    data["case"].setdefault("path", path)
+    return data
 
 
 def _fmt(value):
@@ -126,10 +170,20 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
     def run():
         from screen.case import load_case
         from screen.cautions import CAUTIONS, SHORT_CAUTION
+        from screen.errors import ScreenError
         from screen.sweep import parse_vary, run_sweep, to_display
 
         case = load_case(case_file, overrides=overrides)
-        variations = [parse_vary(v, case) for v in vary]
+        try:
+            variations = [parse_vary(v, case) for v in vary]
+        except ScreenError as exc:  # a bad --vary concerns the command line, for this case
+            raise type(exc)(exc.message, exc.key if exc.key == "--vary" else
+                            f"--vary {exc.key}" if exc.key else "--vary",
+                            exc.path or str(case_file)) from None
+        if csv_path:
+            from screen.fileio import check_writable
+
+            check_writable(csv_path, force)  # fail before the computation, not after it
         rows, flips = run_sweep(case, variations)
         if csv_path:
             _write_csv(rows, csv_path, force)
@@ -202,9 +256,7 @@ def _format_sweep(case, variations, rows, flips, to_display):
 def _write_csv(rows, path, force):
     import csv
     import io
-    import os
 
-    from screen.errors import OutputError
     from screen.fileio import write_atomic
 
     keys: list[str] = []

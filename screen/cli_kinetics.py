@@ -17,7 +17,6 @@ from __future__ import annotations
 import json
 import math
 import os
-import sys
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -172,6 +171,13 @@ def analyse_kinetics(thermogram_paths=(), peaks_path=None, sample_masses=(), hea
     if energy is not None and thermogram_paths:
         raise CaseError("--energy is for peak tables or a single onset; thermograms give their "
                         "own energy", key="--energy")
+    if not thermogram_paths:
+        # Options that act on thermograms only: silently ignoring them would hide a mistake.
+        for option, given in (("--sample-mass", sample_masses), ("--heating-rate", heating_rates),
+                              ("--range", integration_range), ("--exo-up/--exo-down", exo_up)):
+            if given not in (None, (), []):
+                raise CaseError("applies to thermogram files only (a peak table or an onset has "
+                                "no curve); leave it out or give the thermograms", key=option)
     if not 0.5 <= confidence_level < 1:
         raise CaseError(f"{confidence_level} must lie between 0.5 and 1", key="--confidence")
     q_det = parse_quantity(detection_limit, "specific_power", "--detection-limit")
@@ -408,7 +414,7 @@ def _energy(result, given_energy):
         )
     if result.energy is not None and result.energy["mean"] > ENERGY_EXPLOSIVE_SCREENING:
         result.warnings.append(
-            f"decomposition energy {result.energy['mean'] / 1e3:.0f} J/g exceeds 500 J/g: "
+            f"decomposition energy {result.energy['mean'] / 1e3:.4g} J/g exceeds 500 J/g: "
             "potentially explosive; the UN Manual of Tests and Criteria (appendix 6) screens for "
             "explosive properties above 500 J/g (from memory; 500-800 J/g is common practice)"
         )
@@ -483,10 +489,14 @@ def _onset_and_td24(result, given_onset, q_det, cp):
         ),
     }
     measured = [t for t, _ in candidates if t is not None]
+    what = "onset"
+    if not measured:  # a peak table without onsets: the peaks are the lowest measured points
+        measured = [r.peak_temperature for r in result.runs]
+        what = "peak temperature"
     if measured and td < min(measured) - EXTRAPOLATION_WARNING:
         result.warnings.append(
             f"TD24 from the kinetics ({td - ZERO_CELSIUS:.0f} degC) lies "
-            f"{min(measured) - td:.0f} K below the lowest measured onset "
+            f"{min(measured) - td:.0f} K below the lowest measured {what} "
             f"({min(measured) - ZERO_CELSIUS:.0f} degC; design limit {EXTRAPOLATION_WARNING:.0f} K): "
             "far extrapolation, confirm with isothermal or adiabatic tests"
         )
@@ -910,12 +920,20 @@ def decomposition_toml(result):
     lines.append(f"model = {_toml_string(ms['name'])}")
     ea_text = "%.4g kJ/mol" % (ms["activation_energy"] / 1e3)
     lines.append(f"activation_energy = {_toml_string(ea_text)}")
+    if not ms["ln_pre_exponential_factor"] < 700.0:
+        raise CaseError(f"ln A = {ms['ln_pre_exponential_factor']:.4g} is beyond the range of "
+                        f"floating-point numbers; check the DSC data", key="--output")
     a_text = "%.5g 1/s" % math.exp(ms["ln_pre_exponential_factor"])
     lines.append(f"pre_exponential_factor = {_toml_string(a_text)}")
     lines.append(f"order = {ms['order']:.4g}")
     if ms["name"] == "autocatalytic":
         lines.append(f"autocatalytic_order = {ms['autocatalytic_order']:.4g}")
         lines.append(f"initial_conversion = {ms['initial_conversion']:.4g}")
+    lowest = _lowest_measured_temperature(result)
+    if lowest is not None:
+        # Lets the case engine warn when its TD24 is extrapolated far below the data.
+        lowest_text = "%.1f degC" % (lowest - ZERO_CELSIUS)
+        lines.append(f"lowest_measured_temperature = {_toml_string(lowest_text)}")
     if result.onset is not None:
         onset_text = "%.1f degC" % (result.onset["temperature"] - ZERO_CELSIUS)
         lines.append(f"onset_temperature = {_toml_string(onset_text)}")
@@ -923,6 +941,28 @@ def decomposition_toml(result):
     text = "\n".join(lines) + "\n"
     tomllib.loads(text)  # validate before anything is written
     return text
+
+
+def _lowest_measured_temperature(result):
+    """Lowest temperature with measured heat release [K]: first exceedance of the detection
+    limit or extrapolated onset of any run; without them the lowest peak temperature."""
+    measured = [t for r in result.runs for t in (r.detection_temperature, r.onset_temperature)
+                if t is not None]
+    if not measured:
+        measured = [r.peak_temperature for r in result.runs]
+    return min(measured) if measured else None
+
+
+def _check_toml_target(path, force):
+    """Raise OutputError if ``path`` cannot be written (see :func:`write_toml`)."""
+    target = Path(path)
+    if target.is_dir():
+        raise OutputError("is a directory; give a file name ending in .toml", path=str(target))
+    if target.exists() and not force:
+        raise OutputError("exists; use --force to overwrite it", path=str(target))
+    directory = target.parent if str(target.parent) else Path(".")
+    if not directory.is_dir():
+        raise OutputError(f"folder {directory} does not exist; create it first", path=str(target))
 
 
 def write_toml(text, path, force=False):
@@ -1156,28 +1196,48 @@ def kinetics_command(thermograms, peaks, sample_mass, heating_rate, exo_up, base
       runaway-screen kinetics run_*.csv --json -o decomposition.toml --png-dir figures
       runaway-screen kinetics --onset '185 degC' --energy '650 J/g'
     """
-    try:
-        result = analyse_kinetics(
-            thermograms, peaks, sample_mass, heating_rate, exo_up, baseline, integration_range,
-            model, onset, energy, detection_limit, specific_heat, confidence,
-        )
+    from screen.cli import handle_errors
+
+    @handle_errors
+    def run():
+        try:
+            _run_kinetics(thermograms, peaks, sample_mass, heating_rate, exo_up, baseline,
+                          integration_range, model, onset, energy, detection_limit,
+                          specific_heat, confidence, as_json, output, force, png_dir)
+        except ScreenError as exc:
+            if exc.path is None and not (exc.key or "").startswith("--") and (peaks or
+                                                                                thermograms):
+                # A method failed on the data as a whole: name the data files.
+                exc.path = peaks or ", ".join(thermograms)
+            raise
+
+    run()
+
+
+def _run_kinetics(thermograms, peaks, sample_mass, heating_rate, exo_up, baseline,
+                  integration_range, model, onset, energy, detection_limit, specific_heat,
+                  confidence, as_json, output, force, png_dir):
+    """Body of the kinetics command (errors are reported by kinetics_command)."""
+    result = analyse_kinetics(
+        thermograms, peaks, sample_mass, heating_rate, exo_up, baseline, integration_range,
+        model, onset, energy, detection_limit, specific_heat, confidence,
+    )
+    text = decomposition_toml(result) if output else None
+    if output:
+        _check_toml_target(output, force)  # before any figure is written: no partial output
+    written = write_pngs(result, png_dir) if png_dir else []
+    if output:
+        write_toml(text, output, force=force)
+    if as_json:
+        payload = result_to_dict(result)
         if output:
-            text = decomposition_toml(result)
-            write_toml(text, output, force=force)
-        written = write_pngs(result, png_dir) if png_dir else []
-        if as_json:
-            payload = result_to_dict(result)
-            if output:
-                payload["output"] = str(output)
-            if written:
-                payload["figures"] = [str(p) for p in written]
-            click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
-        else:
-            click.echo(format_summary(result))
-            if output:
-                click.echo(f"\n[decomposition] section written to {output}")
-            for path in written:
-                click.echo(f"figure written: {path}")
-    except ScreenError as exc:
-        click.echo(f"error: {exc.one_line()}", err=True)
-        sys.exit(2)
+            payload["output"] = str(output)
+        if written:
+            payload["figures"] = [str(p) for p in written]
+        click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
+    else:
+        click.echo(format_summary(result))
+        if output:
+            click.echo(f"\n[decomposition] section written to {output}")
+        for path in written:
+            click.echo(f"figure written: {path}")

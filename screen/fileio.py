@@ -16,6 +16,9 @@ def check_writable(path, force: bool = False) -> None:
     if os.path.exists(path) and not force:
         raise OutputError("exists; use --force to overwrite it or choose another name", path=path)
     directory = os.path.dirname(os.path.abspath(path))
+    if os.path.exists(directory) and not os.path.isdir(directory):
+        raise OutputError(f"{directory} is a file, not a folder; choose a path in a folder",
+                          path=path)
     if not os.path.isdir(directory):
         raise OutputError(f"directory {directory} does not exist; create it first", path=path)
     if not os.access(directory, os.W_OK):

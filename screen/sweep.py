@@ -14,9 +14,16 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from screen.case import SCHEMA, Case, Section, _check_consistency
+from screen.case import (
+    SCHEMA,
+    Case,
+    Section,
+    _check_consistency,
+    check_temperature_range,
+    parse_field_quantity,
+)
 from screen.errors import CaseError, ScreenError
-from screen.units import parse_dimensionless, parse_quantity
+from screen.units import parse_dimensionless
 
 #: Result keys followed along a sweep (flattened names, see screen.compare.flatten_results).
 SWEEP_FIGURES = ("mtsr_degC", "td24_degC", "tmrad_at_mtsr_h", "onset_margin_K",
@@ -48,6 +55,7 @@ def parse_vary(spec: str, case: Case) -> Variation:
                         f"'vessel.coolant_temperature=0 degC:40 degC:41'", key="--vary")
     section, field_name = _split_key(key)
     declared = SCHEMA[section][field_name]
+    _check_key_in_case(key, section, case)
     try:
         steps = int(parts[2])
     except ValueError:
@@ -61,10 +69,35 @@ def parse_vary(spec: str, case: Case) -> Variation:
     elif declared.kind in ("text", "choice", "bool"):
         raise CaseError(f"--vary {spec!r}: {key} is not numeric", key="--vary")
     else:
-        start_q = parse_quantity(parts[0], declared.kind, key)
-        stop_q = parse_quantity(parts[1], declared.kind, key)
+        start_q = parse_field_quantity(declared, parts[0], key)
+        stop_q = parse_field_quantity(declared, parts[1], key)
+        if start_q.si_unit != stop_q.si_unit:
+            raise CaseError(f"--vary {spec!r}: START and STOP have different dimensions "
+                            f"({start_q.si_unit} and {stop_q.si_unit})", key="--vary")
         start, stop, unit = start_q.value, stop_q.value, start_q.si_unit
     return Variation(key, np.linspace(start, stop, steps), unit, rng, declared.kind)
+
+
+def _check_key_in_case(key: str, section: str, case: Case) -> None:
+    """The varied key must act on the case: its section exists, a vessel number exists."""
+    parts = key.split(".")
+    if section == "vessel":
+        if not case.vessels:
+            raise CaseError(f"--vary {key!r}: the case has no [vessel]; add one before sweeping "
+                            f"a vessel input", key="--vary")
+        if len(parts) == 3:
+            try:
+                index = int(parts[1])
+            except ValueError:
+                raise CaseError(f"--vary {key!r}: use vessel.KEY (all vessels) or vessel.N.KEY "
+                                f"(N = 1, 2, ... in file order)", key="--vary") from None
+            if not 1 <= index <= len(case.vessels):
+                raise CaseError(f"--vary {key!r}: vessel number {index} does not exist (the "
+                                f"case has {len(case.vessels)})", key="--vary")
+    elif section not in case.sections:
+        # A value in a section the case does not have would change nothing (or half a feature).
+        raise CaseError(f"--vary {key!r}: the case has no [{section}] section; add it with the "
+                        f"keys it needs before sweeping {key}", key="--vary")
 
 
 def _split_key(key: str):
@@ -99,11 +132,16 @@ def case_with_value(case: Case, key: str, value: float) -> Case:
         values[name] = value
         sections[section] = Section(section, values, SCHEMA[section])
     spec = SCHEMA[section][name]
+    if not math.isfinite(value):
+        raise CaseError(f"value {value!r} is not a finite number", key, case.path)
+    if spec.kind == "temperature":
+        check_temperature_range(value, f"{value:.6g} K", key, case.path)
     if spec.minimum is not None and (value < spec.minimum or (spec.exclusive_minimum
                                                               and value == spec.minimum)):
         raise CaseError(f"value {value:g} below the allowed minimum {spec.minimum:g}", key,
                         case.path)
-    if spec.maximum is not None and value > spec.maximum:
+    if spec.maximum is not None and (value > spec.maximum or (spec.exclusive_maximum
+                                                              and value == spec.maximum)):
         raise CaseError(f"value {value:g} above the allowed maximum {spec.maximum:g}", key,
                         case.path)
     warnings: list[str] = []

@@ -17,6 +17,7 @@ column or row, and the fix. Values are returned in SI: s, K, K/s, kg, W/kg, J/kg
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -116,19 +117,43 @@ def parse_quantity(text, kind, option=None):
     if unit not in table:
         raise CaseError(f"unit {match.group(2).strip()!r} in {text!r} not accepted; use {accepted[0]}",
                         key=where)
+    if not math.isfinite(value):
+        raise CaseError(f"{text!r} is not a finite number", key=where)
     if kind == "temperature":
         kelvin = value + ZERO_CELSIUS if table[unit] == "C" else value
-        if kelvin <= 0:
-            raise CaseError(f"{text!r} is below absolute zero", key=where)
+        problem = _temperature_problem(kelvin)
+        if problem:
+            raise CaseError(f"{text!r} {problem}", key=where)
         return kelvin
     if not value > 0:
         raise CaseError(f"{text!r} must be positive", key=where)
-    return value * table[unit]
+    si = value * table[unit]
+    if not math.isfinite(si) or si == 0.0:
+        raise CaseError(f"{text!r} is outside the range of floating-point numbers", key=where)
+    return si
 
 
 # --------------------------------------------------------------------------------------------
 # Low-level table reading
 # --------------------------------------------------------------------------------------------
+
+#: Largest CSV file read [bytes] (design): a DSC export of one run is some 0.1-5 MB.
+MAX_CSV_BYTES = 20_000_000
+
+#: Temperatures accepted from DSC data and options [K]: -200 degC to 1000 degC (design, the
+#: same window as absolute temperatures in case files, screen.case.TEMPERATURE_RANGE_K).
+TEMPERATURE_RANGE_K = (ZERO_CELSIUS - 200.0, ZERO_CELSIUS + 1000.0)
+
+
+def _temperature_problem(kelvin):
+    """None if ``kelvin`` lies in TEMPERATURE_RANGE_K, else the reason as text."""
+    low, high = TEMPERATURE_RANGE_K
+    if kelvin <= 0:
+        return "is below absolute zero"
+    if not low <= kelvin <= high:
+        return (f"lies outside {low - ZERO_CELSIUS:.0f} to {high - ZERO_CELSIUS:.0f} degC; "
+                f"check the value and its unit")
+    return None
 
 _NUMBER = re.compile(r"^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$")
 _NUMBER_COMMA = re.compile(r"^[-+]?(?:\d+,?\d*|,\d+)(?:[eE][-+]?\d+)?$")
@@ -173,9 +198,14 @@ def _decode(path):
     if p.is_dir():
         raise DataFileError("is a directory, not a CSV file", path=str(path))
     try:
-        raw = p.read_bytes()
+        # Bounded read: a device or pipe (/dev/zero) may never end.
+        with open(p, "rb") as handle:
+            raw = handle.read(MAX_CSV_BYTES + 1)
     except OSError as exc:
         raise DataFileError(f"cannot be read ({exc.strerror})", path=str(path)) from None
+    if len(raw) > MAX_CSV_BYTES:
+        raise DataFileError(f"is larger than {MAX_CSV_BYTES // 1_000_000} MB; export one heating "
+                            f"run per CSV file (a DSC run is well below 10 MB)", path=str(path))
     if b"\x00" in raw[:4096]:
         raise DataFileError(
             "is binary (a native instrument file?); export the run as CSV text", path=str(path)
@@ -522,10 +552,12 @@ def read_thermogram(path, sample_mass=None, heating_rate=None):
     temperature = _column(table, roles["temperature"], table.header[roles["temperature"]])
     if _TEMPERATURE_UNITS[units["temperature"]] == "C":
         temperature = temperature + ZERO_CELSIUS
-    if np.any(temperature <= 0):
-        bad = int(np.argmax(temperature <= 0))
+    _, high = TEMPERATURE_RANGE_K
+    if np.any(temperature <= 0) or np.any(temperature > high):
+        bad = int(np.argmax((temperature <= 0) | (temperature > high)))
+        problem = _temperature_problem(float(temperature[bad]))
         raise DataFileError(
-            f"row {table.rows[bad][0]}: temperature below absolute zero; check the unit of "
+            f"row {table.rows[bad][0]}: temperature {problem}; check the unit of "
             f"{table.header[roles['temperature']]!r}",
             path=table.path,
         )
@@ -719,16 +751,21 @@ def read_peak_table(path):
                     path=str(path),
                 )
             value = _to_float(text_value, decimal_comma)
+            if not math.isfinite(value):
+                raise DataFileError(
+                    f"row {number}, column {column!r}: {text_value!r} is not a finite number",
+                    path=str(path),
+                )
             if column in ("heating_rate_K_per_min", "energy_J_per_g") and not value > 0:
                 raise DataFileError(
                     f"row {number}, column {column!r}: {text_value} must be positive",
                     path=str(path),
                 )
-            if column.endswith("degC") and not value > -ZERO_CELSIUS:
-                raise DataFileError(
-                    f"row {number}, column {column!r}: {text_value} is below absolute zero",
-                    path=str(path),
-                )
+            if column.endswith("degC"):
+                problem = _temperature_problem(value + ZERO_CELSIUS)
+                if problem:
+                    raise DataFileError(f"row {number}, column {column!r}: {text_value} "
+                                        f"{problem}", path=str(path))
             values[column].append(value)
         text_cols = [fields[lookup[c]] for c in PEAK_COLUMNS_TEXT if c in lookup]
         labels.append(text_cols[0] if text_cols else f"row {number}")

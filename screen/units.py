@@ -68,6 +68,10 @@ EXAMPLES: dict[str, str] = {
     "second_order_rate_constant": '"1.2e-6 m^3/(mol s)"',
 }
 
+#: Smallest magnitude accepted other than 0 (design): far below any physical input, above the
+#: subnormal doubles, whose products and quotients underflow to 0 or overflow.
+SMALLEST_VALUE = 1e-250
+
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _QUANTITY_RE = re.compile(
     rf"^\s*(?P<value>{_NUMBER})\s*(?:(?:±|\+/-|\+-)\s*(?P<std>{_NUMBER}))?\s*(?P<unit>.*?)\s*$"
@@ -75,6 +79,12 @@ _QUANTITY_RE = re.compile(
 _OFFSET_UNITS = {"degc", "°c", "celsius", "degree_celsius", "degf", "°f", "fahrenheit",
                  "degree_fahrenheit", "degreec", "deg_c", "℃"}
 _GAUGE_RE = re.compile(r"(barg|psig|kpag|mpag)\b", re.IGNORECASE)
+
+
+def _shown(raw) -> str:
+    """The value as received, shortened for a one-line message."""
+    text = repr(raw)
+    return text if len(text) <= 60 else text[:45] + "..." + text[-10:]
 
 
 @dataclass(frozen=True)
@@ -140,58 +150,58 @@ def parse_quantity(raw, kind: str, key: str, path: str | None = None) -> ParsedQ
     expected_dim, si_unit = DIMENSIONS[kind]
     example = EXAMPLES[kind]
     if isinstance(raw, bool) or not isinstance(raw, (str, int, float)):
-        raise UnitError(f"got {raw!r}; expected a quoted value with unit, e.g. {example}", key, path)
+        raise UnitError(f"got {_shown(raw)}; expected a quoted value with unit, e.g. {example}", key, path)
     if isinstance(raw, (int, float)):
         raise UnitError(
             f"got the bare number {raw!r}; a dimensional value needs its unit as a quoted string, "
             f"e.g. {example}", key, path)
     text = raw.strip()
     if re.search(r"\d,\d", text):
-        raise UnitError(f"got {raw!r}; decimal commas are not accepted (pint would read '1,5' as 15): "
+        raise UnitError(f"got {_shown(raw)}; decimal commas are not accepted (pint would read '1,5' as 15): "
                         f"write a decimal point, e.g. {example}", key, path)
     if re.search(r"\b(nan|inf|infinity)\b", text, re.IGNORECASE):
-        raise UnitError(f"got {raw!r}; the value must be a finite number, e.g. {example}", key, path)
+        raise UnitError(f"got {_shown(raw)}; the value must be a finite number, e.g. {example}", key, path)
     match = _QUANTITY_RE.match(text)
     if not match:
-        raise UnitError(f"got {raw!r}; expected a number followed by a unit, e.g. {example}", key, path)
+        raise UnitError(f"got {_shown(raw)}; expected a number followed by a unit, e.g. {example}", key, path)
     value = float(match["value"])
     std = float(match["std"]) if match["std"] is not None else None
     unit_text = match["unit"]
     if not math.isfinite(value) or (std is not None and not math.isfinite(std)):
-        raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+        raise UnitError(f"got {_shown(raw)}; the value must be a finite number", key, path)
     if std is not None and std < 0:
-        raise UnitError(f"got {raw!r}; an uncertainty after ± must be positive", key, path)
+        raise UnitError(f"got {_shown(raw)}; an uncertainty after ± must be positive", key, path)
     if not unit_text:
-        raise UnitError(f"got {raw!r} without a unit; write e.g. {example}", key, path)
+        raise UnitError(f"got {_shown(raw)} without a unit; write e.g. {example}", key, path)
     if _GAUGE_RE.search(unit_text):
-        raise UnitError(f"got {raw!r}; gauge pressure units are ambiguous here: give the absolute "
+        raise UnitError(f"got {_shown(raw)}; gauge pressure units are ambiguous here: give the absolute "
                         f"pressure, e.g. \"3.5 bar\"", key, path)
     unit_text = _normalise_unit(unit_text)
     ureg = registry()
     try:
         unit = ureg.Unit(unit_text)
     except Exception:  # pint raises many types (UndefinedUnitError, AttributeError, TokenError...)
-        raise UnitError(f"got {raw!r}; the unit {match['unit']!r} is not known; write e.g. {example}",
+        raise UnitError(f"got {_shown(raw)}; the unit {match['unit']!r} is not known; write e.g. {example}",
                         key, path) from None
     try:
         dims_ok = unit.dimensionality == ureg.get_dimensionality(expected_dim)
     except Exception:
         dims_ok = False
     if not dims_ok:
-        raise UnitError(f"got {raw!r}, which is not a {kind.replace('_', ' ')}; write e.g. {example}",
+        raise UnitError(f"got {_shown(raw)}, which is not a {kind.replace('_', ' ')}; write e.g. {example}",
                         key, path)
     offset = _is_offset_temperature(unit_text)
     try:
         if kind == "temperature_difference":
             if offset:
                 raise UnitError(
-                    f"got {raw!r}; this is a temperature difference, and degC/degF are absolute "
+                    f"got {_shown(raw)}; this is a temperature difference, and degC/degF are absolute "
                     f"temperatures here: write the difference in K, e.g. \"60 K\"", key, path)
             q_value = ureg.Quantity(value, unit).to(si_unit).magnitude
             q_std = None if std is None else ureg.Quantity(std, unit).to(si_unit).magnitude
         elif kind == "temperature":
             if "delta" in unit_text.lower():
-                raise UnitError(f"got {raw!r}; a temperature difference unit where an absolute "
+                raise UnitError(f"got {_shown(raw)}; a temperature difference unit where an absolute "
                                 f"temperature is expected: write e.g. \"85 degC\"", key, path)
             q_value = ureg.Quantity(value, unit).to("K").magnitude
             # An uncertainty is a difference: convert it by the scale of the unit only.
@@ -207,13 +217,19 @@ def parse_quantity(raw, kind: str, key: str, path: str | None = None) -> ParsedQ
     except UnitError:
         raise
     except Exception:
-        raise UnitError(f"got {raw!r}; cannot convert it to {si_unit}; write e.g. {example}",
+        raise UnitError(f"got {_shown(raw)}; cannot convert it to {si_unit}; write e.g. {example}",
                         key, path) from None
     q_value = float(q_value)
     if not math.isfinite(q_value):
-        raise UnitError(f"got {raw!r}; the value is not finite after conversion to {si_unit}", key, path)
+        raise UnitError(f"got {_shown(raw)}; the value is not finite after conversion to {si_unit}", key, path)
+    if 0.0 < abs(q_value) < SMALLEST_VALUE:
+        raise UnitError(f"got {_shown(raw)} = {q_value:.3g} {si_unit}; a value this close to zero is a "
+                        f"typing error (write 0 or check the exponent)", key, path)
+    if q_std is not None and not math.isfinite(float(q_std)):
+        raise UnitError(f"got {_shown(raw)}; the uncertainty is not finite after conversion to "
+                        f"{si_unit}", key, path)
     if kind == "temperature" and q_value <= 0.0:
-        raise UnitError(f"got {raw!r} = {q_value:.6g} K; an absolute temperature must be above 0 K",
+        raise UnitError(f"got {_shown(raw)} = {q_value:.6g} K; an absolute temperature must be above 0 K",
                         key, path)
     return ParsedQuantity(q_value, None if q_std is None else float(q_std), raw, si_unit)
 
@@ -227,30 +243,40 @@ def parse_dimensionless(raw, key: str, path: str | None = None) -> ParsedQuantit
         Booleans, non-numbers, non-finite values, or a string with a dimensional unit.
     """
     if isinstance(raw, bool):
-        raise UnitError(f"got {raw!r}; expected a number such as 0.35", key, path)
+        raise UnitError(f"got {_shown(raw)}; expected a number such as 0.35", key, path)
     if isinstance(raw, (int, float)):
-        if not math.isfinite(float(raw)):
-            raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
-        return ParsedQuantity(float(raw), None, str(raw), "1")
+        try:
+            number = float(raw)
+        except OverflowError:  # a TOML integer beyond the float range
+            number = math.inf
+        if not math.isfinite(number):
+            raise UnitError(f"got {_shown(raw)}; the value must be a finite number", key, path)
+        if 0.0 < abs(number) < SMALLEST_VALUE:
+            raise UnitError(f"got {_shown(raw)}; a value this close to zero is a typing error (write 0 "
+                            f"or check the exponent)", key, path)
+        return ParsedQuantity(number, None, str(raw), "1")
     if not isinstance(raw, str):
-        raise UnitError(f"got {raw!r}; expected a number such as 0.35", key, path)
+        raise UnitError(f"got {_shown(raw)}; expected a number such as 0.35", key, path)
     text = raw.strip()
     if re.search(r"\d,\d", text):
-        raise UnitError(f"got {raw!r}; decimal commas are not accepted: write a decimal point",
+        raise UnitError(f"got {_shown(raw)}; decimal commas are not accepted: write a decimal point",
                         key, path)
     if re.search(r"\b(nan|inf|infinity)\b", text, re.IGNORECASE):
-        raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+        raise UnitError(f"got {_shown(raw)}; the value must be a finite number", key, path)
     match = _QUANTITY_RE.match(text)
     if not match:
-        raise UnitError(f"got {raw!r}; expected a number such as 0.35 or \"35 %\"", key, path)
+        raise UnitError(f"got {_shown(raw)}; expected a number such as 0.35 or \"35 %\"", key, path)
     value = float(match["value"])
     std = float(match["std"]) if match["std"] is not None else None
     unit = match["unit"].strip()
     if unit in ("%", "percent"):
         value, std = value / 100.0, (None if std is None else std / 100.0)
     elif unit:
-        raise UnitError(f"got {raw!r}; this value is dimensionless: write a plain number or a "
+        raise UnitError(f"got {_shown(raw)}; this value is dimensionless: write a plain number or a "
                         f"percentage such as \"35 %\"", key, path)
     if not math.isfinite(value) or (std is not None and (not math.isfinite(std) or std < 0)):
-        raise UnitError(f"got {raw!r}; the value must be a finite number", key, path)
+        raise UnitError(f"got {_shown(raw)}; the value must be a finite number", key, path)
+    if 0.0 < abs(value) < SMALLEST_VALUE:
+        raise UnitError(f"got {_shown(raw)}; a value this close to zero is a typing error (write 0 or "
+                        f"check the exponent)", key, path)
     return ParsedQuantity(value, std, raw, "1")

@@ -252,7 +252,30 @@ def _check_runs(heating_rates, temperatures, what):
         raise ModelDomainError(f"{what}: temperatures must be positive kelvin values")
     if np.unique(beta).size < 2:
         raise ModelDomainError(f"{what}: at least two different heating rates are needed")
+    if np.unique(temp).size < 2:
+        raise ModelDomainError(f"{what}: all runs have the same temperature, so the slope is "
+                               f"undefined; check the temperatures of the runs")
+    with np.errstate(all="ignore"):
+        ordinate = np.log(beta / temp**2)
+    if not np.all(np.isfinite(ordinate)):
+        raise ModelDomainError(f"{what}: heating rates or temperatures outside the range of "
+                               f"floating-point numbers; check their values and units")
     return beta, temp
+
+
+#: Largest reduced activation energy E/(R Tp) accepted from a peak-temperature analysis [-]
+#: (design): exp(E/(R Tp)) in the pre-exponential factor overflows near 709.
+MAX_REDUCED_ACTIVATION_ENERGY = 700.0
+
+
+def _check_reduced_activation_energy(energy, temperatures, what):
+    """Raise ModelDomainError when E/(R T) at the lowest temperature exceeds the limit."""
+    reduced = energy / (GAS_CONSTANT * float(np.min(temperatures)))
+    if not math.isfinite(reduced) or reduced > MAX_REDUCED_ACTIVATION_ENERGY:
+        raise ModelDomainError(
+            f"{what}: E = {energy / 1e3:.4g} kJ/mol gives E/(R Tp) = {reduced:.4g}, above "
+            f"{MAX_REDUCED_ACTIVATION_ENERGY:.0f}: the peak temperatures hardly move with the "
+            f"heating rate; check the heating rates and peak temperatures")
 
 
 # --------------------------------------------------------------------------------------------
@@ -337,6 +360,7 @@ def kissinger(heating_rates, peak_temperatures, confidence_level=0.95):
             "activation energy exists; check the heating rates and peak temperatures"
         )
     energy = -GAS_CONSTANT * fit.slope
+    _check_reduced_activation_energy(energy, tp, "Kissinger")
     ln_a = fit.intercept + math.log(-fit.slope)
     energy_interval = ln_a_interval = energy_se = None
     if fit.t_quantile is not None:
@@ -486,9 +510,11 @@ def astm_e698(heating_rates, peak_temperatures, confidence_level=0.95, tolerance
         raise ModelDomainError(
             "ASTM E698: peak temperature does not rise with heating rate; check the data"
         )
+    _check_reduced_activation_energy(-GAS_CONSTANT * fit.slope / DOYLE_SLOPE, tp, "ASTM E698")
     first, energy, factor, iterations = _refine_flynn_wall_ozawa(
         fit.slope, float(np.mean(tp)), tolerance, max_iterations
     )
+    _check_reduced_activation_energy(energy, tp, "ASTM E698")
     interval = None
     if fit.t_quantile is not None:
         scale = GAS_CONSTANT * math.log(10.0) / factor
