@@ -148,6 +148,18 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
             raise CaseError("give --workers or --scheduler, not both", "--workers")
         if csv_path:
             check_writable(csv_path, force)  # fail before the computation, not after it
+        if pdf_dir is not None and not os.path.isdir(pdf_dir):
+            raise CaseError("is not an existing directory; create it first", "--pdf-dir",
+                            pdf_dir)
+        for text in overrides:  # a malformed --set is a bad argument (exit 2), not 80 row errors
+            from screen.case import SCHEMA
+
+            key = text.split("=", 1)[0].strip() if "=" in text else ""
+            parts = key.split(".")
+            if not key or parts[0] not in SCHEMA or (
+                    parts[-1] not in SCHEMA[parts[0]] and SCHEMA[parts[0]]):
+                raise CaseError(f"--set {text!r}: expected SECTION.KEY=VALUE with a key of the "
+                                f"case schema, e.g. 'process.temperature=70 degC'", "--set")
         executor = _connect_scheduler(scheduler) if scheduler else None
         bar = click.progressbar(length=len(files), label="Screening", file=sys.stderr,
                                 show_pos=True)

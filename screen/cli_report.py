@@ -17,27 +17,16 @@ def load_earlier_result(path) -> dict:
     DataFileError
         The JSON file is missing, unreadable or not a result of ``check --json``.
     """
-    import json
-
     from screen.errors import DataFileError
 
     path = str(path)
     if path.lower().endswith(".json"):
+        from screen.cli_compare import read_result_json
+
         try:
-            with open(path, encoding="utf-8") as handle:
-                data = json.load(handle)
-        except FileNotFoundError:
-            raise DataFileError("file not found; give an earlier 'check --json' output or a "
-                                "case file", key="--since", path=path) from None
-        except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
-            raise DataFileError(f"not a readable JSON result ({exc}); give the output of "
-                                f"'runaway-screen check --json'", key="--since",
-                                path=path) from None
-        if not isinstance(data, dict) or not isinstance(data.get("results"), dict) or \
-                not isinstance(data.get("inputs"), list):
-            raise DataFileError("JSON without 'results' and 'inputs': not an output of "
-                                "'runaway-screen check --json'", key="--since", path=path)
-        return data
+            return read_result_json(path)  # bounded read, same checks as `compare`
+        except DataFileError as exc:
+            raise DataFileError(exc.message, key="--since", path=path) from None
     from screen.cli import run_check
 
     return run_check(path).to_json_dict(generated_at=None)
@@ -70,7 +59,8 @@ def report_command(case_file, output, force, overrides, since_path):
         pages = write_report(result, output, force=force, generated_at=timestamp(),
                              since=since)
         klass = result.results.get("criticality_class")
-        click.echo(f"PDF written to {output} ({pages} pages; criticality class {klass}; "
+        verdict = "no class: cannot conclude" if klass is None else f"criticality class {klass}"
+        click.echo(f"PDF written to {output} ({pages} pages; {verdict}; "
                    f"screening aid only)")
 
     run()

@@ -115,7 +115,10 @@ def format_vessels(vessels) -> list[str]:
     """Scale-up table, one row per vessel, then the verdict per vessel."""
 
     def num(value, fmt):
-        return "n/a" if value is None else format(value, fmt)
+        if value is None:
+            width = fmt.split(".")[0]
+            return f"{'n/a':>{int(width)}}" if width.isdigit() else " n/a"
+        return format(value, fmt)
 
     lines = ["Vessels (Semenov heat balance of the decomposition; synthesis cooling check)"]
     header = (f"  {'vessel':<24}{'fill m3':>8}{'A m2':>7}{'A/V':>6}{'UA W/K':>9}{'W/kg':>7}"

@@ -1167,6 +1167,8 @@ def _probability_phrase(label: str, count: int, total: int, equals: str = " = ")
 
 
 def _format_probability(p: float) -> str:
+    if p is None:
+        return "n/c"
     if p == 0.0:
         return "0"
     if p == 1.0:
@@ -1516,6 +1518,21 @@ def summarise(run: MonteCarloRun, case, results):
         "sensitivity": ranking,
         "confidence": confidence,
     }
+    if crude:
+        # Fail closed: on the crude onset estimate the sampled classes 1-3 and the probability
+        # levels are no basis for a verdict; they are withheld (classes 4 and 5 are kept).
+        block["class_probabilities_basis"] = ("crude onset estimate: only the probability of "
+                                              "classes 4 and 5 is meaningful")
+        low = sum(class_probabilities[k] for k in ("1", "2", "3"))
+        block["class_probabilities"] = {"1": None, "2": None, "3": None,
+                                        "4": class_probabilities["4"],
+                                        "5": class_probabilities["5"]}
+        block["probability_class_1_to_3_not_concluded"] = low
+        block["nominal_class_probability"] = None
+        block["probability_level_probabilities"] = {
+            name: None for name in block["probability_level_probabilities"]}
+        block["probability_3_level_probabilities"] = {
+            name: None for name in block["probability_3_level_probabilities"]}
     block["summary_lines"] = _summary_lines(block)
     return block, warnings
 

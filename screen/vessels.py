@@ -83,7 +83,6 @@ def vessel_results(case, kinetics, mtsr):
     from screen.models import semenov
 
     process = case.sections["process"]
-    synthesis = case.sections["synthesis"]
     cp = float(case.sections["mass"].specific_heat)
     t_p = float(process.temperature)
     q_syn = synthesis_specific_energy(case)
@@ -142,7 +141,16 @@ def vessel_results(case, kinetics, mtsr):
                                                             e_dec)
             psi = float(semenov.semenov_number(mass, ua_eff, t_c_eff, q_ref, t_ref, e_dec))
         except ScreenError as exc:
-            raise type(exc)(f"{vessel.name}: {exc.message}", prefix, case.path) from None
+            # The heat balance has no Semenov structure here (e.g. no tangency): fail closed for
+            # this vessel and keep the rest of the screening.
+            entry = _undetermined_vessel(vessel, mass, fill_volume, fill_fraction, area, u, ua,
+                                         losses, t_c, t_p, cp, tau, exc.message)
+            ua_synthesis, check_mass, _ = _ua_at_smallest_fill(case, vessel, mass, ua, u)
+            entry.update(_synthesis_check(case, vessel, mass, ua_synthesis, t_p, t_c, q_syn,
+                                          rise_syn, cp, semenov))
+            warnings.append(f"{vessel.name}: {entry['verdict']}")
+            entries.append(entry)
+            continue
         t_star = float(critical.tangency_temperature)
         t_c_crit_eff = float(critical.critical_coolant_temperature)
         # With losses the balance uses an equivalent sink; report the coolant-side value.
@@ -198,6 +206,41 @@ def vessel_results(case, kinetics, mtsr):
         curves.append(_semenov_curve(vessel.name, mass, ua_eff, t_c_eff, t_c_crit_eff, t_nr, t_star,
                                      q_ref, t_ref, e_dec, mtsr, t_p))
     return entries, curves, warnings
+
+
+def _undetermined_vessel(vessel, mass, fill_volume, fill_fraction, area, u, ua, losses, t_c,
+                         t_p, cp, tau, reason):
+    """Vessel entry when the Semenov analysis is not defined: every safety figure is null and
+    the verdict is "cannot-conclude" (no temperature is declared safe)."""
+    return {
+        "name": vessel.name,
+        "batch_mass_kg": mass,
+        "fill_volume_m3": fill_volume,
+        "fill_fraction": fill_fraction,
+        "heat_transfer_area_m2": area,
+        "area_from_geometry": vessel.heat_transfer_area is None,
+        "area_to_volume_per_m": (area / fill_volume) if fill_volume else None,
+        "heat_transfer_coefficient_W_per_m2K": u,
+        "ua_W_per_K": ua,
+        "heat_losses_W_per_K": losses,
+        "coolant_temperature_degC": _c(t_c),
+        "specific_cooling_capacity_W_per_kg": ua * (t_p - t_c) / mass,
+        "time_constant_h": tau / SECONDS_PER_HOUR,
+        "critical_coolant_temperature_degC": None,
+        "coolant_margin_K": None,
+        "tangency_temperature_degC": None,
+        "critical_temperature_difference_K": None,
+        "critical_temperature_difference_linearised_K": None,
+        "stable_temperature_degC": None,
+        "no_return_temperature_degC": None,
+        "tmrad_at_no_return_h": None,
+        "semenov_number": None,
+        "semenov_number_critical": 1.0 / math.e,
+        "mtsr_above_no_return": True,
+        "stability": "cannot-conclude",
+        "verdict": (f"CANNOT CONCLUDE: the Semenov heat balance is not defined for this vessel "
+                    f"({reason}); no temperature is declared safe."),
+    }
 
 
 def _ua_at_smallest_fill(case, vessel, mass, ua, u):

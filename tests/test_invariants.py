@@ -395,3 +395,30 @@ def test_nr6_results_depend_on_no_global_state():
                     "decomposition.autocatalytic_order": 1,
                     "decomposition.initial_conversion": 0.01}))
     assert screened(raw()).results == first
+
+
+def test_runaway_simulation_is_bounded_and_fails_cleanly(tmp_path):
+    """Design: a pathological simulation ends in a SolverError within seconds, never hangs.
+
+    The acylation example with the decomposition reference moved to 0 degC decomposes violently
+    at the process temperature; the stiff integration used to run for minutes.
+    """
+    import pathlib
+    import time
+
+    from click.testing import CliRunner
+
+    from screen.cli import main
+
+    root = pathlib.Path(__file__).parent.parent
+    text = (root / "cases" / "acylation_semibatch_kinetics.toml").read_text(encoding="utf-8")
+    assert 'reference_temperature = "170 degC"' in text
+    path = tmp_path / "violent.toml"
+    path.write_text(text.replace('reference_temperature = "170 degC"',
+                                 'reference_temperature = "0 degC"'), encoding="utf-8")
+    start = time.perf_counter()
+    result = CliRunner().invoke(main, ["check", str(path), "--json"])
+    elapsed = time.perf_counter() - start
+    assert result.exit_code == 2, result.output
+    assert "evaluations" in result.output and "Traceback" not in result.output
+    assert elapsed < 60.0

@@ -730,9 +730,23 @@ def _log_tmrad_flat(model, energy, activation_energy, log_factor, order, autocat
                                   specific_heat)
 
 
-def _check_start(start_temperature, specific_heat):
+#: Smallest non-zero reaction order accepted [-] (design): below it the quadrature's panel
+#: count is not representable and the order is physically meaningless.
+MINIMUM_NONZERO_ORDER = 1e-6
+#: Lowest start temperature accepted [K] (design).
+MINIMUM_START_TEMPERATURE = 1.0
+
+
+def _check_start(start_temperature, specific_heat, orders=()):
     _require_positive(start_temperature, "start_temperature", "K")
     _require_positive(specific_heat, "specific_heat", "J/(kg K)")
+    if np.any(np.asarray(start_temperature) < MINIMUM_START_TEMPERATURE):
+        raise ModelDomainError(f"start_temperature must be at least {MINIMUM_START_TEMPERATURE} K")
+    for name, order in orders:
+        values = np.asarray(order, dtype=float)
+        if np.any((values > 0.0) & (values < MINIMUM_NONZERO_ORDER)):
+            raise ModelDomainError(f"{name} must be 0 or at least {MINIMUM_NONZERO_ORDER:g}",
+                                   key=f"decomposition.{name}")
 
 
 def log_tmrad(kinetics, start_temperature, specific_heat):
@@ -758,7 +772,8 @@ def log_tmrad(kinetics, start_temperature, specific_heat):
         A non-positive start temperature or specific heat.
     """
     shape, flat = _flatten(kinetics, start_temperature, specific_heat)
-    _check_start(flat[6], flat[7])
+    _check_start(flat[6], flat[7], (("order", kinetics.order),
+                                    ("autocatalytic_order", kinetics.autocatalytic_order)))
     return _scalar_or_array(_log_tmrad_flat(kinetics.model, *flat).reshape(shape))
 
 

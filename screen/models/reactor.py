@@ -720,6 +720,27 @@ class _PiecewiseTrajectory:
         return np.unique(np.concatenate(self.step_times))
 
 
+#: Right-hand-side evaluations allowed per integration segment before giving up (design; a
+#: normal segment needs a few thousand). Keeps a pathological case from running for minutes.
+MAX_RHS_EVALUATIONS = 60_000
+
+
+class _BudgetExceeded(Exception):
+    pass
+
+
+def _with_budget(rhs):
+    calls = [0]
+
+    def counted(t, y):
+        calls[0] += 1
+        if calls[0] > MAX_RHS_EVALUATIONS:
+            raise _BudgetExceeded
+        return rhs(t, y)
+
+    return counted
+
+
 def _integrate(
     balances: _Balances,
     initial_state: np.ndarray,
@@ -752,7 +773,7 @@ def _integrate(
     segments = []
     for left, right in zip(breaks[:-1], breaks[1:]):
         mass_rate, molar_rate = balances.feed_rates(left, feed_on)
-        rhs = balances.make_rhs(mass_rate, molar_rate, ua)
+        rhs = _with_budget(balances.make_rhs(mass_rate, molar_rate, ua))
         try:
             solution = solve_ivp(
                 rhs,
@@ -763,6 +784,12 @@ def _integrate(
                 atol=absolute_tolerance,
                 dense_output=True,
             )
+        except _BudgetExceeded:
+            raise SolverError(
+                f"solve_ivp ({method}, rtol {relative_tolerance:g}) needed more than "
+                f"{MAX_RHS_EVALUATIONS} evaluations between {left:.6g} s and {right:.6g} s "
+                f"without finishing: the system is extremely stiff or runs away numerically "
+                f"(check the rate constants and the decomposition kinetics)") from None
         except (OverflowError, FloatingPointError, ZeroDivisionError) as exc:
             raise SolverError(
                 f"integration failed between {left:.6g} s and {right:.6g} s ({exc}); the "
