@@ -412,6 +412,17 @@ def _class_from_simulated_mtsr(result, t_p, mtt, td24) -> None:
     new_class = int(crit.criticality_class(t_p, simulated + ZERO_CELSIUS, mtt, td24))
     r["mtsr_governing_degC"] = simulated
     r["mtsr_governing_basis"] = "simulation (feed stopped at the worst failure time)"
+    r["onset_margin_governing_K"] = td24 - (simulated + ZERO_CELSIUS)
+    kinetics, cp = result.curves.get("kinetics"), result.curves.get("specific_heat")
+    if kinetics is not None and cp is not None:
+        from screen.models import decomposition as dm
+
+        tmr_h = to_hours(float(dm.tmrad(kinetics, simulated + ZERO_CELSIUS, cp)))
+        r["tmrad_at_mtsr_governing_h"] = tmr_h
+        # The probability follows the shorter TMRad (fail closed).
+        if tmr_h < r["tmrad_at_mtsr_h"]:
+            r["probability_6"] = crit.probability_level(tmr_h, 6)
+            r["probability"] = crit.probability_level(tmr_h, 3)
     if new_class > r["criticality_class"]:
         r["criticality_class_stated_mtsr"] = r["criticality_class"]
         r["criticality_class"] = new_class

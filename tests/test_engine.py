@@ -157,3 +157,29 @@ def test_plausible_edges_do_not_warn():
     result = screened(raw_case(**{"mass.specific_heat": "0.85 kJ/(kg K)",
                                   "decomposition.activation_energy": "35 kJ/mol"}))
     assert not any("outside the usual" in text for text in result.warnings)
+
+
+def test_higher_simulated_mtsr_governs_the_class():
+    """Fail closed (design): when the cooling-failure simulation finds a higher MTSR than the
+    stated accumulation gives, the class follows the higher value. Checked with the class table
+    (Stoessel 1993) applied to the simulated MTSR; the demo case supplies only the inputs."""
+    import pathlib
+
+    from screen.case import load_case
+    from screen.engine import screen_case
+    from screen.models.criticality import criticality_class
+
+    path = pathlib.Path(__file__).parent.parent / "cases" / "acylation_semibatch_kinetics.toml"
+    case = load_case(path, overrides=["process.accumulation=0.01",
+                                      "process.max_technical_temperature=55 degC",
+                                      "solvent.pressure=0.45 bar"])
+    result = screen_case(case, curves=False)
+    r = result.results
+    simulated = r["simulation"]["mtsr_feed_stopped_degC"]
+    assert simulated > r["mtsr_degC"] + 1.0
+    assert r["mtsr_governing_degC"] == simulated
+    expected = criticality_class(r["process_temperature_degC"], simulated, r["mtt_degC"],
+                                 r["td24_degC"])
+    assert r["criticality_class"] == expected
+    assert r["criticality_class"] > r["criticality_class_stated_mtsr"]
+    assert any("class is raised" in w for w in result.warnings)
