@@ -61,12 +61,20 @@ def format_portfolio(frame, files_count: int) -> str:
     lines = [f"Portfolio screening: {files_count} case files, {len(frame)} rows, "
              f"{len(errors)} with errors", ""]
     lines.append(f"{'file':<28}{'vessel':<20}{'class':>5}{'MTSR':>7}{'TD24':>7}"
-                 f"{'TMRad h':>10}  {'vessel status':<12}")
+                 f"{'TMRad h':>10}  {'decomp./synthesis/barrier'}")
+
+    def missing(value):
+        import pandas
+
+        return value is None or bool(pandas.isna(value))
 
     def cell(value, fmt):
-        if value is None or value != value:  # None, NaN, pandas.NA
+        if missing(value):  # None, NaN, pandas.NA
             return "-"
         return format(value, fmt)
+
+    def word(value):
+        return "-" if missing(value) else str(value)
 
     for _, row in frame.iterrows():
         name = str(row["file"]).replace("\\", "/").rsplit("/", 1)[-1]
@@ -75,10 +83,11 @@ def format_portfolio(frame, files_count: int) -> str:
             lines.append(f"{name[:27]:<28}ERROR (see below)")
             continue
         klass = row["criticality_class"]
-        klass_text = "-" if klass is None or klass != klass else str(int(klass))
+        klass_text = "n/c" if missing(klass) else str(int(klass))
         tmr = row["tmrad_at_mtsr_h"]
-        tmr_text = cell(tmr, ".3g") if tmr is None or tmr != tmr or tmr < 1e5 else f"{tmr:.1e}"
-        status = row["vessel_stability"] if isinstance(row["vessel_stability"], str) else "-"
+        tmr_text = cell(tmr, ".3g") if missing(tmr) or tmr < 1e5 else f"{tmr:.1e}"
+        status = "/".join(word(row[k]) for k in ("vessel_stability", "synthesis_stability",
+                                                  "barrier_verdict"))
         flag = "  ERROR" if isinstance(row["error"], str) else ""
         lines.append(f"{name[:27]:<28}{vessel[:19]:<20}{klass_text:>5}"
                      f"{cell(row['mtsr_degC'], '.1f'):>7}{cell(row['td24_degC'], '.1f'):>7}"
@@ -92,7 +101,8 @@ def format_portfolio(frame, files_count: int) -> str:
         counts = classes.astype(int).value_counts().sort_index()
         lines += ["", "Cases per class: " + ", ".join(f"class {k}: {v}"
                                                      for k, v in counts.items())]
-    lines += ["", "(MTSR and TD24 in degC)", SHORT_CAUTION]
+    lines += ["", "(MTSR and TD24 in degC; class n/c: cannot conclude; status: decomposition heat "
+              "balance / synthesis cooling / boiling barrier)", SHORT_CAUTION]
     return "\n".join(lines)
 
 

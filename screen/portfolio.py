@@ -27,7 +27,7 @@ COLUMNS = (
     "decomposition_basis",
     "vessel_stability", "critical_coolant_temperature_degC", "coolant_margin_K",
     "no_return_temperature_degC", "mtsr_above_no_return", "time_constant_h",
-    "synthesis_stability",
+    "synthesis_stability", "synthesis_cooling_ratio", "barrier_verdict",
     "verdict", "vessel_verdict", "pdf", "sha256",
 )
 
@@ -46,6 +46,7 @@ _VESSEL_FIGURES = {
     "mtsr_above_no_return": "mtsr_above_no_return",
     "time_constant_h": "time_constant_h",
     "synthesis_stability": "synthesis_stability",
+    "synthesis_cooling_ratio": "synthesis_cooling_ratio",
     "vessel_verdict": "verdict",
 }
 
@@ -163,6 +164,10 @@ def screen_file(path, overrides=(), pdf_path=None, force=False, generated_at=Non
         vessel_row["vessel"] = entry.get("name")
         for column, key in _VESSEL_FIGURES.items():
             vessel_row[column] = entry.get(key)
+        barrier = results.get("barrier") or {}
+        for item in barrier.get("vessels", []) or []:
+            if item.get("name") == entry.get("name"):
+                vessel_row["barrier_verdict"] = item.get("barrier_verdict")
         rows.append(vessel_row)
     return rows
 

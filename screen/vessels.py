@@ -117,6 +117,7 @@ def vessel_results(case, kinetics, mtsr):
 
     entries, curves = [], []
     multiple = len(case.vessels) > 1
+    tmrad_mtsr_h = float(dm.tmrad(kinetics, mtsr, cp)) / SECONDS_PER_HOUR
     for index, vessel in enumerate(case.vessels, start=1):
         prefix = f"vessel.{index}" if multiple else "vessel"
         mass, fill_volume, area, fill_fraction, geo_warnings = vessel_geometry(case, vessel,
@@ -195,7 +196,16 @@ def vessel_results(case, kinetics, mtsr):
         entry["synthesis_check_ua_W_per_K"] = ua_synthesis
         if area_note:
             entry["synthesis_check_area_note"] = area_note
-        entry["stability"], entry["verdict"] = _vessel_verdict(entry, t_nr, mtsr, crude)
+        entry["stability"], entry["verdict"] = _vessel_verdict(entry, t_nr, mtsr, crude,
+                                                               tmrad_mtsr_h)
+        if t_c >= t_p:
+            warnings.append(f"{vessel.name}: the coolant ({t_c - ZERO_CELSIUS:.1f} degC) is not "
+                            f"colder than the process ({t_p - ZERO_CELSIUS:.1f} degC): the jacket "
+                            f"heats the mass in normal operation; check coolant_temperature.")
+        if entry.get("synthesis_stability") == "not assessed":
+            warnings.append(f"{vessel.name}: synthesis cooling check not assessed (give "
+                            f"synthesis.activation_energy with peak_heat_release_rate, or "
+                            f"dosing_time for semi-batch).")
         if entry["stability"] != "stable":
             warnings.append(f"{vessel.name}: {entry['verdict']}")
         if entry.get("synthesis_stability") == "unstable" or (
@@ -343,7 +353,7 @@ def result_basis_is_crude(case) -> bool:
     return case.sections["decomposition"].model is None
 
 
-def _vessel_verdict(entry, t_nr, mtsr, crude=False):
+def _vessel_verdict(entry, t_nr, mtsr, crude=False, tmrad_mtsr_h=None):
     if crude:
         return ("cannot-conclude",
                 "CANNOT CONCLUDE: decomposition kinetics missing (crude onset estimate); the "
@@ -360,10 +370,15 @@ def _vessel_verdict(entry, t_nr, mtsr, crude=False):
                 f"return ({entry['no_return_temperature_degC']:.1f} degC): once the mass reaches "
                 f"MTSR, restored cooling cannot bring it back.")
     margin = t_nr - mtsr
+    hurry = ""
+    if tmrad_mtsr_h is not None:
+        shown = (f"{tmrad_mtsr_h * 60:.0f} min" if tmrad_mtsr_h < 1 else f"{tmrad_mtsr_h:.3g} h")
+        hurry = f", but only if cooling is back well within TMRad at MTSR ({shown})"
     return ("stable",
             f"recoverable: if cooling is restored at MTSR the mass can be brought back (T_NR "
-            f"{entry['no_return_temperature_degC']:.1f} degC lies {margin:.0f} K above MTSR); "
-            f"coolant {entry['coolant_margin_K']:.0f} K below its critical temperature.")
+            f"{entry['no_return_temperature_degC']:.1f} degC lies {margin:.0f} K above MTSR)"
+            f"{hurry}; coolant {entry['coolant_margin_K']:.0f} K below its critical "
+            f"temperature.")
 
 
 def _semenov_curve(name, mass, ua, t_c, t_c_crit, t_nr, t_star, q_ref, t_ref, e, mtsr, t_p):

@@ -379,7 +379,7 @@ def barrier_verdict_lines(block) -> list[str]:
             text += f" — {prose(short)}"
             others = sum(1 for r in reasons[1:] if split_grade(r)[1] not in ("holds", None))
             if others:
-                text += f" (and {others} more finding{'s' if others > 1 else ''} not holding)"
+                text += f" (+{others})"
         lines.append(text)
     return lines
 

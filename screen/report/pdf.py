@@ -306,8 +306,15 @@ def _vessel_summary(vessel, results) -> str:
     t_nr = vessel.get("no_return_temperature_degC")
     if stability == "stable" and t_nr is not None:
         margin = t_nr - results["mtsr_degC"]
-        return (f"<b>{name}: RECOVERABLE</b> — T<sub>NR</sub> {format_celsius(t_nr)} °C, "
-                f"{format_kelvin(margin)} K above MTSR")
+        tmr = results.get("tmrad_at_mtsr_h")
+        if vessel.get("synthesis_stability") == "unstable":
+            return (f"<b>{name}: SYNTHESIS COOLING UNSTABLE</b>; T<sub>NR</sub> "
+                    f"{format_kelvin(margin)} K above MTSR")
+        text = (f"<b>{name}: RECOVERABLE</b> — T<sub>NR</sub> {format_kelvin(margin)} K above "
+                f"MTSR")
+        if tmr is not None and tmr < 24.0:
+            text += f", if cooled within {tmr:.2g} h"
+        return text
     return (f"<b>{name}: {escape(str(stability).upper())}</b> — "
             f"{prose(_strip_prefix(vessel.get('verdict', '')))}")
 
