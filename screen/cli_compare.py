@@ -186,7 +186,7 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
             check_writable(csv_path, force)  # fail before the computation, not after it
         rows, flips = run_sweep(case, variations)
         if csv_path:
-            _write_csv(rows, csv_path, force)
+            _write_csv(rows, csv_path, force, variations)
         if as_json:
             payload = {
                 "case": {"title": case.title, "path": case.path, "sha256": case.sha256},
@@ -246,19 +246,37 @@ def _format_sweep(case, variations, rows, flips, to_display):
                 k, v = flip.fixed[0]
                 dv, du = to_display(v, variations[1].unit, variations[1].kind)
                 fixed = f" (at {k.split('.')[-1]} = {dv:.4g} {du})"
-            changes = "; ".join(f"{n}: {a} -> {b}" for n, a, b in flip.changed())
+            changes = "; ".join(
+                f"{n}: {'not assessed' if a is None else a} -> {'not assessed' if b is None else b}"
+                for n, a, b in flip.changed())
             lines.append(f"  !!! {first.key} = {value:.6g} {unit}{fixed}: {changes}")
     else:
         lines.append("No verdict flips over this range.")
     return "\n".join(lines)
 
 
-def _write_csv(rows, path, force):
+def _write_csv(rows, path, force, variations=()):
     import csv
     import io
 
     from screen.fileio import write_atomic
+    from screen.sweep import to_display
 
+    # Varied inputs are written in SI and in the display unit, both named with their unit.
+    renamed = []
+    for row in rows:
+        out = {}
+        for key, value in row.items():
+            variation = next((v for v in variations if v.key == key), None)
+            if variation is None:
+                out[key] = value
+                continue
+            shown, unit = to_display(value, variation.unit, variation.kind)
+            out[f"{key} [{variation.unit or '-'}]"] = value
+            if unit != variation.unit:
+                out[f"{key} [{unit}]"] = shown
+        renamed.append(out)
+    rows = renamed
     keys: list[str] = []
     for row in rows:
         for key in row:

@@ -521,6 +521,9 @@ def _add_vessels(case, result: ScreeningResult, kinetics, mtsr) -> None:
     """Vessel heat balance (Semenov) results, one entry per vessel."""
     if not case.vessels:
         result.results["vessels"] = []
+        result.warnings.append("No [vessel] given: the heat balance of the vessel (Semenov "
+                               "stability, temperature of no return, cooling capacity) is not "
+                               "checked.")
         return
     from screen.vessels import vessel_results
 

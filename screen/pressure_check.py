@@ -310,11 +310,14 @@ def _summary_lines(r: dict) -> list[str]:
         lines.append(f"  p_sat at {entry['point'][:26]:<26} {entry['temperature_degC']:6.1f} degC "
                      f"{entry['vapour_pressure_bar']:8.3g} bar{flag}")
     for vessel in r["vessels"]:
+        bound = " (at least: lower bound)" if vessel.get("is_lower_bound") else ""
         lines.append(f"  closed {vessel['vessel'][:30]}: {vessel['total_bar']:.3g} bar(a) at "
-                     f"{vessel['temperature_degC']:.0f} degC")
+                     f"{vessel['temperature_degC']:.0f} degC{bound}")
         lines.append(f"    -> {vessel['verdict']}")
+        gas = ("? (no gas_yield)" if vessel.get("gas_moles") in (None, 0, 0.0)
+               and vessel.get("is_lower_bound") else f"{vessel['decomposition_gas_bar']:.3g} bar")
         lines.append(f"    vapour {vessel['vapour_bar']:.3g} + pad gas {vessel['pad_gas_bar']:.3g}"
-                     f" + decomposition gas {vessel['decomposition_gas_bar']:.3g} bar; headspace "
+                     f" bar + decomposition gas {gas}; headspace "
                      f"{vessel['headspace_m3']:.3g} m3")
         if vessel["relief_set_pressure_bar"] is not None:
             lines.append(f"    relief set pressure {vessel['relief_set_pressure_bar']:.4g} bar(a)")

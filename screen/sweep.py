@@ -205,8 +205,8 @@ class Flip:
                 if self.before.get(n) != self.after.get(n)]
 
 
-def locate_flip(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80) -> tuple[float, dict, dict]:
-    """Bisection on ``key`` between ``low`` and ``high`` (whose verdicts differ)."""
+def _bracket_flip(case, key, low, high, fixed, rel_tol, max_iter):
+    """Bisection: the narrowest (low, high, row_low, row_high) around the first verdict change."""
     row_low = evaluate_point(case, list(fixed) + [(key, low)])
     row_high = evaluate_point(case, list(fixed) + [(key, high)])
     sig_low = _verdict_signature(row_low)
@@ -220,10 +220,33 @@ def locate_flip(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80) -> tu
             low, row_low = mid, row_mid
         else:
             high, row_high = mid, row_mid
-    return 0.5 * (low + high), dict(_verdict_signature(row_low)) if sig_low != ("error",) else {
-        "error": row_low.get("error")}, (dict(_verdict_signature(row_high))
-                                         if "error" not in row_high
-                                         else {"error": row_high.get("error")})
+    return low, high, row_low, row_high
+
+
+def _verdicts(row):
+    if "error" in row:
+        return {"error": row.get("error")}
+    return dict(_verdict_signature(row))
+
+
+def locate_flip(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80) -> tuple[float, dict, dict]:
+    """Bisection on ``key`` between ``low`` and ``high`` (whose verdicts differ)."""
+    low, high, row_low, row_high = _bracket_flip(case, key, low, high, fixed, rel_tol, max_iter)
+    return 0.5 * (low + high), _verdicts(row_low), _verdicts(row_high)
+
+
+def locate_flips(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80, max_flips=8):
+    """All verdict changes between two grid points (several can fall between neighbours)."""
+    target = _verdict_signature(evaluate_point(case, list(fixed) + [(key, high)]))
+    found = []
+    start = low
+    for _ in range(max_flips):
+        a, b, row_a, row_b = _bracket_flip(case, key, start, high, fixed, rel_tol, max_iter)
+        found.append((0.5 * (a + b), _verdicts(row_a), _verdicts(row_b)))
+        if _verdict_signature(row_b) == target or b >= high:
+            break
+        start = b
+    return found
 
 
 def run_sweep(case: Case, variations: list[Variation]):
@@ -249,8 +272,9 @@ def run_sweep(case: Case, variations: list[Variation]):
                    **row}
             rows.append(row)
             if previous is not None and _verdict_signature(previous[1]) != _verdict_signature(row):
-                at, before, after = locate_flip(case, first.key, previous[0], float(value), fixed)
-                flips.append(Flip(first.key, at, first.unit, before, after, tuple(fixed)))
+                for at, before, after in locate_flips(case, first.key, previous[0],
+                                                      float(value), fixed):
+                    flips.append(Flip(first.key, at, first.unit, before, after, tuple(fixed)))
             previous = (float(value), row)
     return rows, flips
 
