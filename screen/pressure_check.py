@@ -317,8 +317,8 @@ def _summary_lines(r: dict) -> list[str]:
         gas = ("? (no gas_yield)" if vessel.get("gas_moles") in (None, 0, 0.0)
                and vessel.get("is_lower_bound") else f"{vessel['decomposition_gas_bar']:.3g} bar")
         lines.append(f"    vapour {vessel['vapour_bar']:.3g} + pad gas {vessel['pad_gas_bar']:.3g}"
-                     f" bar + decomposition gas {gas}; headspace "
-                     f"{vessel['headspace_m3']:.3g} m3")
+                     f" bar + decomposition gas {gas}")
+        lines.append(f"    headspace {vessel['headspace_m3']:.3g} m3")
         if vessel["relief_set_pressure_bar"] is not None:
             lines.append(f"    relief set pressure {vessel['relief_set_pressure_bar']:.4g} bar(a)")
     if not r["vessels"]:
