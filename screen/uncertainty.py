@@ -1550,14 +1550,23 @@ def _summary_lines(block) -> list[str]:
             return f"{value:.3g}" if abs(value) < 1e5 else f"{value:.2e}"
         return f"{value:.{digits}f}"
 
-    p = _format_probability
+    samples = block["samples"]
+
+    def p(value):
+        # A probability no sample (or every sample) reached is shown with its 95 % bound
+        # (rule of three: Hanley & Lippman-Hand 1983), never as a bare 0 or 1.
+        if value == 0.0:
+            return f"<{3.0 / samples:.2g}"
+        if value == 1.0:
+            return f">{1.0 - 3.0 / samples:.4g}"
+        return _format_probability(value)
     lines = [f"Uncertainty of the verdict (Monte Carlo, {block['samples']} samples, seed "
              f"{block['seed']})"]
-    classes = "  ".join(f"{k}: {p(v)}" for k, v in block["class_probabilities"].items())
-    lines.append(fit(f"  class probability  {classes}"))
-    lines.append(fit(f"  P(class >= 4) = {p(block['probability_class_4_or_5'])}   "
-                     f"P(MTSR >= TD24) = {p(block['probability_mtsr_at_or_above_td24'])}   "
-                     f"P(MTSR >= MTT) = {p(block['probability_mtsr_at_or_above_mtt'])}"))
+    classes = " ".join(f"{k}: {p(v)}" for k, v in block["class_probabilities"].items())
+    lines.append(fit(f"  class probability {classes}"))
+    lines.append(fit(f"  P(class >= 4) = {p(block['probability_class_4_or_5'])}  "
+                     f"P(MTSR >= TD24) = {p(block['probability_mtsr_at_or_above_td24'])}"))
+    lines.append(fit(f"  P(MTSR >= MTT) = {p(block['probability_mtsr_at_or_above_mtt'])}"))
     lines.append(f"  (standard error of a probability at most "
                  f"{block['probability_standard_error_max']:.2g})")
     lines.append(f"  {'':<26}{'p5':>10}{'p50':>10}{'p95':>10}")
