@@ -527,7 +527,8 @@ def _add_vessels(case, result: ScreeningResult, kinetics, mtsr) -> None:
         return
     from screen.vessels import vessel_results
 
-    entries, curves, warnings = vessel_results(case, kinetics, mtsr)
+    entries, curves, warnings = vessel_results(case, kinetics, mtsr,
+                                               result.results.get("tmrad_at_mtsr_h"))
     result.results["vessels"] = entries
     result.curves["vessels"] = curves
     result.warnings.extend(warnings)

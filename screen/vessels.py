@@ -63,7 +63,7 @@ def vessel_geometry(case, vessel, prefix):
     return mass, fill_volume, area, fill_fraction, warnings
 
 
-def vessel_results(case, kinetics, mtsr):
+def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
     """Heat-balance results for every vessel of the case.
 
     Parameters
@@ -72,13 +72,15 @@ def vessel_results(case, kinetics, mtsr):
     kinetics : screen.models.decomposition.DecompositionKinetics
     mtsr : float
         MTSR of the case. [K]
+    tmrad_mtsr_h : float, optional
+        TMRad at MTSR, if already known (computed otherwise). [h]
 
     Returns
     -------
     (list of dict, list of dict, list of str)
         JSON-ready entries, curve data for the Semenov diagrams, warnings.
     """
-    from screen.engine import synthesis_specific_energy
+    from screen.engine import characteristic_temperatures, synthesis_specific_energy
     from screen.models import decomposition as dm
     from screen.models import semenov
 
@@ -92,8 +94,6 @@ def vessel_results(case, kinetics, mtsr):
     # autocatalytic decomposition the fresh-mass rate (at a0) is far below the rate the mass
     # reaches, so the rate at the maximum of f(a) = a^m (1-a)^n, a* = m/(m+n), is used instead
     # (conservative; derived).
-    from screen.engine import characteristic_temperatures
-
     t_ref = characteristic_temperatures(kinetics, cp)[0]
     conversion_basis = None
     warnings: list[str] = []
@@ -117,7 +117,8 @@ def vessel_results(case, kinetics, mtsr):
 
     entries, curves = [], []
     multiple = len(case.vessels) > 1
-    tmrad_mtsr_h = float(dm.tmrad(kinetics, mtsr, cp)) / SECONDS_PER_HOUR
+    if tmrad_mtsr_h is None:
+        tmrad_mtsr_h = float(dm.tmrad(kinetics, mtsr, cp)) / SECONDS_PER_HOUR
     for index, vessel in enumerate(case.vessels, start=1):
         prefix = f"vessel.{index}" if multiple else "vessel"
         mass, fill_volume, area, fill_fraction, geo_warnings = vessel_geometry(case, vessel,
