@@ -297,7 +297,7 @@ def _decomposition_at_mtt(case, mtt):
         # f = a^m (1-a)^n peaks at a* = m/(m+n) (derived); isothermal rate at MTT there.
         m, n = float(kinetics.autocatalytic_order), float(kinetics.order)
         a0 = float(kinetics.initial_conversion)
-        star = m / (m + n) if m + n > 0 else a0
+        star = 1.0 - 1e-9 if n == 0 else m / (m + n)  # same a* as screen.vessels
         peak = max(fresh, float(kinetics.heat_release_rate(mtt, max(star, a0))))
     return kinetics, basis, fresh, peak
 
@@ -307,6 +307,8 @@ def _decomposition_at_mtt(case, mtt):
 
 
 def _grade(value, limit, margin):
+    if not (math.isfinite(value) and math.isfinite(limit)):
+        return "fails"  # an undefined figure never lets the barrier hold (fail closed)
     if value >= limit:
         return "fails"
     if value >= (1.0 - margin) * limit:

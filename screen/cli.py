@@ -132,6 +132,10 @@ def timestamp() -> str:
 @handle_errors
 def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed):
     """Screen CASE_FILE and print the figures, the class and the warnings."""
+    if pdf_path:
+        from screen.report import check_output_path
+
+        check_output_path(str(pdf_path), force)  # fail before the computation, not after it
     result = run_check(case_file, overrides)
     if samples is not None:
         from screen.uncertainty import add_uncertainty

@@ -166,6 +166,7 @@ def synthesis_specific_energy(case) -> float:
 
 
 def _plausibility_warnings(case, synthesis_rise, decomposition_rise, warnings):
+    # Plausibility bands below: common practice, no source.
     cp = case.sections["mass"].specific_heat
     if not 800.0 <= cp <= 5000.0:
         warnings.append(f"mass.specific_heat = {cp / 1000:.3g} kJ/(kg K) is outside the usual "

@@ -14,6 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
 from screen.case import (
     SCHEMA,
     Case,
@@ -229,12 +230,6 @@ def _verdicts(row):
     return dict(_verdict_signature(row))
 
 
-def locate_flip(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80) -> tuple[float, dict, dict]:
-    """Bisection on ``key`` between ``low`` and ``high`` (whose verdicts differ)."""
-    low, high, row_low, row_high = _bracket_flip(case, key, low, high, fixed, rel_tol, max_iter)
-    return 0.5 * (low + high), _verdicts(row_low), _verdicts(row_high)
-
-
 def locate_flips(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80, max_flips=8):
     """All verdict changes between two grid points (several can fall between neighbours)."""
     target = _verdict_signature(evaluate_point(case, list(fixed) + [(key, high)]))
@@ -282,11 +277,7 @@ def run_sweep(case: Case, variations: list[Variation]):
 def to_display(value: float, unit: str, kind: str):
     """SI value to the display unit used in tables (degC for temperatures, h for times)."""
     if kind == "temperature":
-        return value - 273.15, "degC"
+        return value - ZERO_CELSIUS, "degC"
     if kind == "time":
-        return value / 3600.0, "h"
+        return value / SECONDS_PER_HOUR, "h"
     return value, unit
-
-
-def finite(value) -> bool:
-    return isinstance(value, (int, float)) and math.isfinite(value)

@@ -456,3 +456,18 @@ def test_kinetics_robust_to_noise_and_drift(noise_fraction, drift, offset, exo_d
     assert fried.mean() == pytest.approx(truth["energy"], rel=0.03)
     for a in analyses:
         assert a.energy == pytest.approx(800e3, rel=0.02)
+
+
+def test_zero_order_helpers_reject_nan():
+    # Project rule (fail closed): a NaN input raises the project's error, never returns NaN.
+    import math as _math
+
+    from screen.errors import ModelDomainError
+    from screen.models import dsc as _dsc
+
+    with pytest.raises(ModelDomainError):
+        _dsc.townsend_tou_time_to_maximum_rate(_math.nan, 30.0, 100e3, 1800.0)
+    with pytest.raises(ModelDomainError):
+        _dsc.townsend_tou_time_to_maximum_rate(400.0, 30.0, _math.nan, 1800.0)
+    with pytest.raises(ModelDomainError):
+        _dsc.crude_td24_from_onset(_math.nan)

@@ -1604,6 +1604,9 @@ def townsend_tou_time_to_maximum_rate(temperature, ln_heat_release_coefficient, 
     log domain so that large E/RT cannot overflow.
     """
     temp = np.asarray(temperature, dtype=float)
+    values = (activation_energy, specific_heat, ln_heat_release_coefficient)
+    if not (np.all(np.isfinite(temp)) and all(np.isfinite(v) for v in values)):
+        raise ModelDomainError("TMRad needs finite T, ln q_inf, E and c'p (got NaN or inf)")
     if activation_energy <= 0 or specific_heat <= 0 or np.any(temp <= 0):
         raise ModelDomainError("TMRad needs E > 0, c'p > 0 and T > 0 K")
     ln_q = ln_heat_release_coefficient - activation_energy / (GAS_CONSTANT * temp)
@@ -1643,8 +1646,11 @@ def zero_order_td(ln_heat_release_coefficient, activation_energy, specific_heat,
     """
     from scipy.optimize import brentq
 
-    if time_to_maximum_rate <= 0:
-        raise ModelDomainError("target time must be positive")
+    values = (ln_heat_release_coefficient, activation_energy, specific_heat, time_to_maximum_rate)
+    if not all(np.isfinite(v) for v in values):
+        raise ModelDomainError("TD needs finite ln q_inf, E, c'p and target time (got NaN or inf)")
+    if time_to_maximum_rate <= 0 or activation_energy <= 0 or specific_heat <= 0:
+        raise ModelDomainError("target time, E and c'p must be positive")
     low, high = bracket
     high = min(high, 0.999 * activation_energy / (2.0 * GAS_CONSTANT))
     if not high > low:
@@ -1699,6 +1705,8 @@ def crude_td24_from_onset(onset_temperature, detection_limit=CRUDE_DETECTION_LIM
     q(T_onset) = detection limit. Then q(T) = q_det exp(-(E/R)(1/T - 1/T_on)) and
     TD24 solves c'p R T^2/(q(T) E) = 24 h (Townsend & Tou 1980). A crude screening estimate.
     """
+    if not (np.isfinite(onset_temperature) and np.isfinite(detection_limit)):
+        raise ModelDomainError("onset temperature and detection limit must be finite numbers")
     if onset_temperature <= 0 or detection_limit <= 0:
         raise ModelDomainError("onset temperature and detection limit must be positive")
     ln_q_inf = math.log(detection_limit) + activation_energy / (GAS_CONSTANT * onset_temperature)

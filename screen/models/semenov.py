@@ -34,7 +34,7 @@ from typing import NamedTuple
 import numpy as np
 
 from screen.constants import GAS_CONSTANT
-from screen.errors import ModelDomainError, SolverError
+from screen.errors import ModelDomainError
 
 __all__ = [
     "CriticalPoint",
