@@ -488,16 +488,15 @@ def _onset_and_td24(result, given_onset, q_det, cp):
             f"for the fitted model), c'p = {cp / 1e3:g} kJ/(kg K)"
         ),
     }
-    measured = [t for t, _ in candidates if t is not None]
-    what = "onset"
-    if not measured:  # a peak table without onsets: the peaks are the lowest measured points
-        measured = [r.peak_temperature for r in result.runs]
-        what = "peak temperature"
-    if measured and td < min(measured) - EXTRAPOLATION_WARNING:
+    # Only temperatures measured in the runs count (an --onset typed by the user does not).
+    lowest = _lowest_measured_temperature(result)
+    what = ("onset" if any(r.detection_temperature is not None or r.onset_temperature is not None
+                           for r in result.runs) else "peak temperature")
+    if lowest is not None and td < lowest - EXTRAPOLATION_WARNING:
         result.warnings.append(
             f"TD24 from the kinetics ({td - ZERO_CELSIUS:.0f} degC) lies "
-            f"{min(measured) - td:.0f} K below the lowest measured {what} "
-            f"({min(measured) - ZERO_CELSIUS:.0f} degC; design limit {EXTRAPOLATION_WARNING:.0f} K): "
+            f"{lowest - td:.0f} K below the lowest measured {what} "
+            f"({lowest - ZERO_CELSIUS:.0f} degC; design limit {EXTRAPOLATION_WARNING:.0f} K): "
             "far extrapolation, confirm with isothermal or adiabatic tests"
         )
     if result.model is not None and result.model.name == "autocatalytic":
