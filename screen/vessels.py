@@ -136,33 +136,7 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
         else:
             ua_eff, t_c_eff = ua, t_c
         tau = float(semenov.cooling_time_constant(mass, cp, ua_eff))
-        try:
-            critical = semenov.critical_point(mass, ua_eff, q_ref, t_ref, e_dec)
-            t_nr = semenov.no_return_temperature(mass, ua_eff, t_c_eff, q_ref, t_ref, e_dec)
-            t_stable = semenov.stable_operating_temperature(mass, ua_eff, t_c_eff, q_ref, t_ref,
-                                                            e_dec)
-            psi = float(semenov.semenov_number(mass, ua_eff, t_c_eff, q_ref, t_ref, e_dec))
-        except ScreenError as exc:
-            # The heat balance has no Semenov structure here (e.g. no tangency): fail closed for
-            # this vessel and keep the rest of the screening.
-            entry = _undetermined_vessel(vessel, mass, fill_volume, fill_fraction, area, u, ua,
-                                         losses, t_c, t_p, cp, tau, exc.message)
-            ua_synthesis, check_mass, _ = _ua_at_smallest_fill(case, vessel, mass, ua, u)
-            entry.update(_synthesis_check(case, vessel, mass, ua_synthesis, t_p, t_c, q_syn,
-                                          rise_syn, cp, semenov))
-            warnings.append(f"{vessel.name}: {entry['verdict']}")
-            entries.append(entry)
-            continue
-        t_star = float(critical.tangency_temperature)
-        t_c_crit_eff = float(critical.critical_coolant_temperature)
-        # With losses the balance uses an equivalent sink; report the coolant-side value.
-        t_c_crit = ((ua_eff * t_c_crit_eff - losses * float(t_amb)) / ua if losses > 0.0
-                    else t_c_crit_eff)
-        if t_nr is not None and not math.isfinite(t_nr):
-            t_nr = None
-        tmr_nr = float(dm.tmrad(kinetics, t_nr, cp)) / SECONDS_PER_HOUR if t_nr else None
-        mtsr_above_nr = True if t_nr is None else bool(mtsr >= t_nr)
-        entry = {
+        base = {
             "name": vessel.name,
             "batch_mass_kg": mass,
             "fill_volume_m3": fill_volume,
@@ -176,29 +150,57 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
             "coolant_temperature_degC": _c(t_c),
             "specific_cooling_capacity_W_per_kg": ua * (t_p - t_c) / mass,
             "time_constant_h": tau / SECONDS_PER_HOUR,
-            "critical_coolant_temperature_degC": _c(t_c_crit),
-            "coolant_margin_K": t_c_crit - t_c,
-            "tangency_temperature_degC": _c(t_star),
-            "critical_temperature_difference_K": t_star - t_c_crit_eff,
-            "critical_temperature_difference_linearised_K": float(
-                semenov.linearised_critical_temperature_difference(t_c_crit_eff, e_dec)),
-            "decomposition_rate_conversion_basis": conversion_basis,
-            "stable_temperature_degC": _c(t_stable) if t_stable is not None else None,
-            "no_return_temperature_degC": _c(t_nr) if t_nr is not None else None,
-            "tmrad_at_no_return_h": tmr_nr,
-            "semenov_number": psi,
             "semenov_number_critical": 1.0 / math.e,
-            "mtsr_above_no_return": mtsr_above_nr,
+            "decomposition_rate_conversion_basis": conversion_basis,
         }
         ua_synthesis, check_mass, area_note = _ua_at_smallest_fill(case, vessel, mass, ua, u)
-        entry.update(_synthesis_check(case, vessel, mass, ua_synthesis, t_p, t_c, q_syn,
-                                      rise_syn, cp, semenov))
-        entry["synthesis_check_fill_mass_kg"] = check_mass
-        entry["synthesis_check_ua_W_per_K"] = ua_synthesis
+        synthesis_part = _synthesis_check(case, vessel, mass, ua_synthesis, t_p, t_c, q_syn,
+                                          rise_syn, cp, semenov)
+        synthesis_part["synthesis_check_fill_mass_kg"] = check_mass
+        synthesis_part["synthesis_check_ua_W_per_K"] = ua_synthesis
         if area_note:
-            entry["synthesis_check_area_note"] = area_note
-        entry["stability"], entry["verdict"] = _vessel_verdict(entry, t_nr, mtsr, crude,
-                                                               tmrad_mtsr_h)
+            synthesis_part["synthesis_check_area_note"] = area_note
+        t_nr = None
+        try:
+            critical = semenov.critical_point(mass, ua_eff, q_ref, t_ref, e_dec)
+            t_nr = semenov.no_return_temperature(mass, ua_eff, t_c_eff, q_ref, t_ref, e_dec)
+            t_stable = semenov.stable_operating_temperature(mass, ua_eff, t_c_eff, q_ref, t_ref,
+                                                            e_dec)
+            psi = float(semenov.semenov_number(mass, ua_eff, t_c_eff, q_ref, t_ref, e_dec))
+        except ScreenError as exc:
+            # The heat balance has no Semenov structure here (e.g. no tangency): fail closed for
+            # this vessel and keep the rest of the screening.
+            entry = {**base, **_UNDETERMINED, **synthesis_part,
+                     "verdict": (f"CANNOT CONCLUDE: the Semenov heat balance is not defined for "
+                                 f"this vessel ({exc.message}); no temperature is declared safe.")}
+        else:
+            t_star = float(critical.tangency_temperature)
+            t_c_crit_eff = float(critical.critical_coolant_temperature)
+            # With losses the balance uses an equivalent sink; report the coolant-side value.
+            t_c_crit = ((ua_eff * t_c_crit_eff - losses * float(t_amb)) / ua if losses > 0.0
+                        else t_c_crit_eff)
+            if t_nr is not None and not math.isfinite(t_nr):
+                t_nr = None
+            tmr_nr = float(dm.tmrad(kinetics, t_nr, cp)) / SECONDS_PER_HOUR if t_nr else None
+            entry = {
+                **base,
+                "critical_coolant_temperature_degC": _c(t_c_crit),
+                "coolant_margin_K": t_c_crit - t_c,
+                "tangency_temperature_degC": _c(t_star),
+                "critical_temperature_difference_K": t_star - t_c_crit_eff,
+                "critical_temperature_difference_linearised_K": float(
+                    semenov.linearised_critical_temperature_difference(t_c_crit_eff, e_dec)),
+                "stable_temperature_degC": _c(t_stable) if t_stable is not None else None,
+                "no_return_temperature_degC": _c(t_nr) if t_nr is not None else None,
+                "tmrad_at_no_return_h": tmr_nr,
+                "semenov_number": psi,
+                "mtsr_above_no_return": True if t_nr is None else bool(mtsr >= t_nr),
+                **synthesis_part,
+            }
+            entry["stability"], entry["verdict"] = _vessel_verdict(entry, t_nr, mtsr, crude,
+                                                                   tmrad_mtsr_h)
+            curves.append(_semenov_curve(vessel.name, mass, ua_eff, t_c_eff, t_c_crit_eff, t_nr,
+                                         t_star, q_ref, t_ref, e_dec, mtsr, t_p))
         if t_c >= t_p:
             warnings.append(f"{vessel.name}: the coolant ({t_c - ZERO_CELSIUS:.1f} degC) is not "
                             f"colder than the process ({t_p - ZERO_CELSIUS:.1f} degC): the jacket "
@@ -214,44 +216,24 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
                 and entry["synthesis_cooling_ratio"] < 1.0):
             warnings.append(f"{vessel.name}: {entry['synthesis_verdict']}")
         entries.append(entry)
-        curves.append(_semenov_curve(vessel.name, mass, ua_eff, t_c_eff, t_c_crit_eff, t_nr, t_star,
-                                     q_ref, t_ref, e_dec, mtsr, t_p))
     return entries, curves, warnings
 
 
-def _undetermined_vessel(vessel, mass, fill_volume, fill_fraction, area, u, ua, losses, t_c,
-                         t_p, cp, tau, reason):
-    """Vessel entry when the Semenov analysis is not defined: every safety figure is null and
-    the verdict is "cannot-conclude" (no temperature is declared safe)."""
-    return {
-        "name": vessel.name,
-        "batch_mass_kg": mass,
-        "fill_volume_m3": fill_volume,
-        "fill_fraction": fill_fraction,
-        "heat_transfer_area_m2": area,
-        "area_from_geometry": vessel.heat_transfer_area is None,
-        "area_to_volume_per_m": (area / fill_volume) if fill_volume else None,
-        "heat_transfer_coefficient_W_per_m2K": u,
-        "ua_W_per_K": ua,
-        "heat_losses_W_per_K": losses,
-        "coolant_temperature_degC": _c(t_c),
-        "specific_cooling_capacity_W_per_kg": ua * (t_p - t_c) / mass,
-        "time_constant_h": tau / SECONDS_PER_HOUR,
-        "critical_coolant_temperature_degC": None,
-        "coolant_margin_K": None,
-        "tangency_temperature_degC": None,
-        "critical_temperature_difference_K": None,
-        "critical_temperature_difference_linearised_K": None,
-        "stable_temperature_degC": None,
-        "no_return_temperature_degC": None,
-        "tmrad_at_no_return_h": None,
-        "semenov_number": None,
-        "semenov_number_critical": 1.0 / math.e,
-        "mtsr_above_no_return": True,
-        "stability": "cannot-conclude",
-        "verdict": (f"CANNOT CONCLUDE: the Semenov heat balance is not defined for this vessel "
-                    f"({reason}); no temperature is declared safe."),
-    }
+#: Safety figures of a vessel whose Semenov analysis is not defined: all null, and no
+#: temperature is declared safe (fail closed).
+_UNDETERMINED = {
+    "critical_coolant_temperature_degC": None,
+    "coolant_margin_K": None,
+    "tangency_temperature_degC": None,
+    "critical_temperature_difference_K": None,
+    "critical_temperature_difference_linearised_K": None,
+    "stable_temperature_degC": None,
+    "no_return_temperature_degC": None,
+    "tmrad_at_no_return_h": None,
+    "semenov_number": None,
+    "mtsr_above_no_return": True,
+    "stability": "cannot-conclude",
+}
 
 
 def _ua_at_smallest_fill(case, vessel, mass, ua, u):
@@ -326,8 +308,11 @@ def _synthesis_check(case, vessel, mass, ua, t_p, t_c, q_syn, rise_syn, cp, seme
         return out
     stability = semenov.operating_point_stability(mass, ua, t_p, peak,
                                                   synthesis.activation_energy)
-    t_max = float(semenov.max_stable_coolant_temperature(mass, ua, t_p, peak,
-                                                         synthesis.activation_energy))
+    try:
+        t_max = float(semenov.max_stable_coolant_temperature(mass, ua, t_p, peak,
+                                                             synthesis.activation_energy))
+    except ScreenError:
+        t_max = None  # no tangency of the synthesis curve: the slope check below still holds
     out["synthesis_slope_ratio"] = float(stability.slope_ratio)
     stable = stability.stable and ratio >= 1.0
     if stable and basis.startswith("dosing-controlled"):
@@ -336,7 +321,7 @@ def _synthesis_check(case, vessel, mass, ua, t_p, t_c, q_syn, rise_syn, cp, seme
         out["synthesis_stability"] = "stable-estimate"
     else:
         out["synthesis_stability"] = "stable" if stable else "unstable"
-    out["synthesis_max_stable_coolant_temperature_degC"] = _c(t_max)
+    out["synthesis_max_stable_coolant_temperature_degC"] = None if t_max is None else _c(t_max)
     parts = [f"cooling capacity / peak heat release = {ratio:.2f}"]
     if ratio < 1.0:
         parts.append("cooling cannot carry the peak heat release at T_p")

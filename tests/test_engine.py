@@ -183,3 +183,32 @@ def test_higher_simulated_mtsr_governs_the_class():
     assert r["criticality_class"] == expected
     assert r["criticality_class"] > r["criticality_class_stated_mtsr"]
     assert any("class is raised" in w for w in result.warnings)
+
+
+def test_vessel_without_semenov_structure_cannot_conclude(monkeypatch):
+    """Fail closed (design): when the Semenov analysis of one vessel is not defined (here forced:
+    the model raises as it does for E <= 4 R T_c), that vessel says "cannot-conclude" with null
+    safety figures, keeps its synthesis check, and the rest of the screening goes on."""
+    import pathlib
+
+    from screen.case import load_case
+    from screen.engine import screen_case
+    from screen.errors import ModelDomainError
+    from screen.models import semenov
+
+    def no_tangency(*args, **kwargs):
+        raise ModelDomainError("activation energy <= 4 R T_c: no tangency")
+
+    monkeypatch.setattr(semenov, "no_return_temperature", no_tangency)
+    path = pathlib.Path(__file__).parent.parent / "cases" / "grignard_semibatch.toml"
+    result = screen_case(load_case(path))
+    (vessel,) = result.results["vessels"]
+    assert vessel["stability"] == "cannot-conclude"
+    assert vessel["mtsr_above_no_return"] is True
+    assert vessel["critical_coolant_temperature_degC"] is None
+    assert vessel["no_return_temperature_degC"] is None
+    assert "no tangency" in vessel["verdict"]
+    assert vessel["synthesis_stability"] in ("stable", "unstable", "stable-estimate")
+    assert result.curves["vessels"] == []
+    assert result.results["criticality_class"] == 3
+    assert any("CANNOT CONCLUDE" in w for w in result.warnings)
