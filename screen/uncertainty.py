@@ -1369,9 +1369,9 @@ def summarise(run: MonteCarloRun, case, results):
     tmr_hours = np.where(tmr_undefined, 0.0, tmr / SECONDS_PER_HOUR)  # fail closed: frequent
     margin = td24 - mtsr
     severity_codes = crit.severity_codes(fig["runaway_rise"])
-    severity3 = np.searchsorted(np.array([50.0, 200.0]), fig["runaway_rise"], side="right")
+    severity3 = np.minimum(severity_codes, 2)  # three levels merge the two highest
     probability_codes = crit.probability_codes(tmr_hours)
-    probability3 = np.searchsorted(np.array([8.0, 24.0]), tmr_hours, side="left")
+    probability3 = np.array(crit.PROBABILITY_3_FROM_6)[probability_codes]
 
     def level_probabilities(codes, names):
         tally = np.bincount(codes, minlength=len(names))

@@ -45,6 +45,13 @@ CLASS_MEANINGS = {
        "from boiling. Redesign the process or provide qualified emergency measures.",
 }
 
+#: Severity band limits on the runaway's adiabatic rise [K] (Stoessel 2008 ch. 3, from memory).
+SEVERITY_LIMITS = (50.0, 200.0, 400.0)
+#: Probability band limits on TMRad at MTSR [h] (Stoessel 2008 ch. 3, from memory).
+PROBABILITY_LIMITS = (1.0, 8.0, 24.0, 50.0, 100.0)
+#: Three-level probability code for each six-level code: up to 8 h high, up to 24 h medium.
+PROBABILITY_3_FROM_6 = (0, 0, 1, 2, 2, 2)
+
 SEVERITY_4_LEVELS = ("negligible", "medium", "critical", "catastrophic")
 SEVERITY_3_LEVELS = ("low", "medium", "high")
 PROBABILITY_6_LEVELS = ("frequent", "probable", "occasional", "seldom", "remote",
@@ -118,19 +125,10 @@ def severity_level(adiabatic_rise, levels: int = 4):
     if not np.isfinite(rise):
         raise ModelDomainError("adiabatic rise must be finite")
     if levels == 4:
-        if rise >= 400.0:
-            return "catastrophic"
-        if rise >= 200.0:
-            return "critical"
-        if rise >= 50.0:
-            return "medium"
-        return "negligible"
+        return SEVERITY_4_LEVELS[int(severity_codes(rise))]
     if levels == 3:
-        if rise >= 200.0:
-            return "high"
-        if rise >= 50.0:
-            return "medium"
-        return "low"
+        # Three levels merge "critical" and "catastrophic" into "high".
+        return SEVERITY_3_LEVELS[min(int(severity_codes(rise)), 2)]
     raise ValueError("levels must be 3 or 4")
 
 
@@ -155,29 +153,21 @@ def probability_level(tmrad_hours, levels: int = 6):
     if np.isnan(tmr) or tmr < 0:
         raise ModelDomainError("TMRad must be a non-negative number")
     if levels == 6:
-        for limit, name in ((1.0, "frequent"), (8.0, "probable"), (24.0, "occasional"),
-                            (50.0, "seldom"), (100.0, "remote")):
-            if tmr <= limit:
-                return name
-        return "almost impossible"
+        return PROBABILITY_6_LEVELS[int(probability_codes(tmr))]
     if levels == 3:
-        if tmr <= 8.0:
-            return "high"
-        if tmr <= 24.0:
-            return "medium"
-        return "low"
+        return PROBABILITY_3_LEVELS[PROBABILITY_3_FROM_6[int(probability_codes(tmr))]]
     raise ValueError("levels must be 3 or 6")
 
 
 def severity_codes(adiabatic_rise):
     """Vectorised 4-level severity as integer codes 0..3 (index into SEVERITY_4_LEVELS)."""
     rise = np.asarray(adiabatic_rise, dtype=float)
-    codes = np.searchsorted(np.array([50.0, 200.0, 400.0]), rise, side="right")
+    codes = np.searchsorted(np.array(SEVERITY_LIMITS), rise, side="right")
     return np.where(np.isnan(rise), 3, codes)  # unknown rise: "catastrophic" (fail closed)
 
 
 def probability_codes(tmrad_hours):
     """Vectorised 6-level probability as integer codes 0..5 (index into PROBABILITY_6_LEVELS)."""
     tmr = np.asarray(tmrad_hours, dtype=float)
-    codes = np.searchsorted(np.array([1.0, 8.0, 24.0, 50.0, 100.0]), tmr, side="left")
+    codes = np.searchsorted(np.array(PROBABILITY_LIMITS), tmr, side="left")
     return np.where(np.isnan(tmr), 0, codes)  # unknown TMRad: "frequent" (fail closed)
