@@ -47,9 +47,6 @@ METHOD_TEXT = (
     "(design). Missing data never give 'holds'. See docs/evaporation.md and docs/scenarios.md.")
 
 
-def _celsius(kelvin):
-    return None if kelvin is None else float(kelvin) - ZERO_CELSIUS
-
 
 def _worst(verdicts) -> str:
     verdicts = list(verdicts)

@@ -98,7 +98,10 @@ def _json_clean(obj):
 
 
 def to_celsius(kelvin):
-    return None if kelvin is None else float(kelvin) - ZERO_CELSIUS
+    """Kelvin to degC for presentation [K -> degC]; None for a missing or non-finite value."""
+    if kelvin is None or not math.isfinite(float(kelvin)):
+        return None
+    return float(kelvin) - ZERO_CELSIUS
 
 
 def to_hours(seconds):

@@ -25,6 +25,7 @@ from typing import Any
 
 from screen.constants import STANDARD_ATMOSPHERE, ZERO_CELSIUS
 from screen.errors import CaseError, ScreenError
+from screen.engine import to_celsius as _c
 
 __all__ = ["add_pressure", "clipped_vapour_pressure", "closed_vessel_estimate"]
 
@@ -108,9 +109,6 @@ def closed_vessel_estimate(temperature: float, solvent, headspace_volume: float,
     return {"vapour": vapour, "pad_gas": pad_gas, "decomposition_gas": gas,
             "total": vapour + pad_gas + gas, "vapour_status": status}
 
-
-def _c(kelvin):
-    return None if kelvin is None else float(kelvin) - ZERO_CELSIUS
 
 
 def _headspace(case, vessel):

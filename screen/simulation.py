@@ -20,8 +20,9 @@ import re
 from dataclasses import dataclass, field
 from typing import Any
 
-from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR, ZERO_CELSIUS
+from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR
 from screen.errors import CaseError, ModelDomainError, SolverError
+from screen.engine import to_celsius as _c
 
 __all__ = [
     "DEFAULT_ACCUMULATION_LIMIT",
@@ -760,9 +761,6 @@ class DecompositionSource:
 # Engine hook
 # --------------------------------------------------------------------------------------------
 
-
-def _c(kelvin):
-    return None if kelvin is None or not math.isfinite(kelvin) else float(kelvin) - ZERO_CELSIUS
 
 
 def _h(seconds):

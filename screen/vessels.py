@@ -15,13 +15,11 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR, ZERO_CELSIUS
 from screen.errors import CaseError, ScreenError
+from screen.engine import to_celsius as _c
 
 #: Fill fraction below which a warning is raised (stirrer and jacket coverage) [-] (design).
 LOW_FILL_FRACTION = 0.15
 
-
-def _c(kelvin):
-    return None if kelvin is None or not math.isfinite(kelvin) else kelvin - ZERO_CELSIUS
 
 
 def vessel_geometry(case, vessel, prefix):

@@ -15,6 +15,7 @@ import numpy as np
 
 from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
 from screen.report.plot import Axes, add_text, clip_segment, spread_labels, text_width
+from screen.engine import to_celsius as _c
 from screen.report.style import (
     ACCENT, FRAME_WIDTH, GREY_DARK, GREY_LIGHT, GREY_MID, GREY_PALE, INK,
 )
@@ -34,9 +35,6 @@ def _drawing(height):
 
     return Drawing(WIDTH, height)
 
-
-def _c(kelvin):
-    return None if kelvin is None else float(kelvin) - ZERO_CELSIUS
 
 
 def _finite(value):
