@@ -16,7 +16,6 @@ from __future__ import annotations
 
 import json
 import math
-import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -954,14 +953,9 @@ def _lowest_measured_temperature(result):
 
 def _check_toml_target(path, force):
     """Raise OutputError if ``path`` cannot be written (see :func:`write_toml`)."""
-    target = Path(path)
-    if target.is_dir():
-        raise OutputError("is a directory; give a file name ending in .toml", path=str(target))
-    if target.exists() and not force:
-        raise OutputError("exists; use --force to overwrite it", path=str(target))
-    directory = target.parent if str(target.parent) else Path(".")
-    if not directory.is_dir():
-        raise OutputError(f"folder {directory} does not exist; create it first", path=str(target))
+    from screen.fileio import check_writable
+
+    check_writable(path, force)
 
 
 def write_toml(text, path, force=False):
@@ -981,28 +975,9 @@ def write_toml(text, path, force=False):
     screen.errors.OutputError
         If the file exists without ``force`` or cannot be written.
     """
-    import tempfile
+    from screen.fileio import write_atomic
 
-    target = Path(path)
-    if target.exists() and not force:
-        raise OutputError("exists; use --force to overwrite it", path=str(target))
-    if target.is_dir():
-        raise OutputError("is a directory; give a file name ending in .toml", path=str(target))
-    directory = target.parent if str(target.parent) else Path(".")
-    if not directory.is_dir():
-        raise OutputError(f"folder {directory} does not exist", path=str(target))
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
-        try:
-            with os.fdopen(fd, "w", encoding="utf-8") as handle:
-                handle.write(text)
-            os.replace(tmp, target)
-        except BaseException:
-            if os.path.exists(tmp):
-                os.unlink(tmp)
-            raise
-    except OSError as exc:
-        raise OutputError(f"cannot be written ({exc.strerror})", path=str(target)) from None
+    write_atomic(path, text.encode("utf-8"), force=force)
 
 
 # --------------------------------------------------------------------------------------------
