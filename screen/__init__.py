@@ -12,14 +12,14 @@ __all__ = ["__version__", "load_case", "screen_case"]
 
 
 def load_case(path, overrides=None):
-    """Load and validate a case file; see :func:`screen.case.load_case`."""
-    from screen.case import load_case as _load
+    """Load and validate a case file; see :func:`screen.io.case.load_case`."""
+    from screen.io.case import load_case as _load
 
     return _load(path, overrides=overrides)
 
 
 def screen_case(case):
-    """Screen a loaded case; see :func:`screen.engine.screen_case`."""
-    from screen.engine import screen_case as _screen
+    """Screen a loaded case; see :func:`screen.analyses.engine.screen_case`."""
+    from screen.runs.screening import screen_case as _screen
 
     return _screen(case)

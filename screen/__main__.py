@@ -1,4 +1,4 @@
-from screen.cli import main
+from screen.cli.main import main
 
 if __name__ == "__main__":  # pragma: no cover
     main()

@@ -14,6 +14,7 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
+from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
 from screen.errors import UnitError
 
 #: Kinds of quantity a case-file field can hold: name -> (pint dimensionality, SI unit string).
@@ -280,3 +281,14 @@ def parse_dimensionless(raw, key: str, path: str | None = None) -> ParsedQuantit
         raise UnitError(f"got {_shown(raw)}; a value this close to zero is a typing error (write 0 or "
                         f"check the exponent)", key, path)
     return ParsedQuantity(value, std, raw, "1")
+
+
+def to_celsius(kelvin):
+    """Kelvin to degC for presentation [K -> degC]; None for a missing or non-finite value."""
+    if kelvin is None or not math.isfinite(float(kelvin)):
+        return None
+    return float(kelvin) - ZERO_CELSIUS
+
+
+def to_hours(seconds):
+    return None if seconds is None else float(seconds) / SECONDS_PER_HOUR

@@ -116,9 +116,9 @@ def _naive_tmrad(kinetics_values, start_temperature, specific_heat):
 def monte_carlo(samples, naive_samples):
     import numpy as np
 
-    from screen.case import load_case
-    from screen.engine import screen_case
-    from screen.uncertainty import run_monte_carlo
+    from screen.io.case import load_case
+    from screen.runs.screening import screen_case
+    from screen.runs.uncertainty import run_monte_carlo
 
     rows = []
     variants = (("nth-order", []),
@@ -151,7 +151,7 @@ def monte_carlo(samples, naive_samples):
     # Naive baseline: one solve_ivp per sample for TMRad at MTSR only (nth order).
     case, results = nth_case
     run = run_monte_carlo(case, results, naive_samples, seed=2)
-    from screen.uncertainty import sampled_kinetics
+    from screen.runs.uncertainty import sampled_kinetics
 
     kinetics = sampled_kinetics(case, results, run.input_values)
     arrays = [np.broadcast_to(np.asarray(x, dtype=float), (naive_samples,))
@@ -173,7 +173,7 @@ def monte_carlo(samples, naive_samples):
 
 
 def portfolio(copies):
-    from screen.portfolio import screen_portfolio
+    from screen.runs.portfolio import screen_portfolio
 
     rows = []
     with tempfile.TemporaryDirectory() as folder:

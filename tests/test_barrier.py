@@ -1,4 +1,4 @@
-"""Tests of screen.barrier: evaporative cooling as the barrier, through the engine.
+"""Tests of screen.analyses.barrier: evaporative cooling as the barrier, through the engine.
 
 Sources of the check values (named beside each test):
 
@@ -24,11 +24,11 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from screen.case import build_case
+from screen.io.case import build_case
 from screen.constants import GAS_CONSTANT, STANDARD_ATMOSPHERE, ZERO_CELSIUS
-from screen.engine import screen_case
+from screen.runs.screening import screen_case
 from screen.errors import CaseError
-from screen.sweep import case_with_value
+from screen.runs.sweep import case_with_value
 
 chemicals = pytest.importorskip("chemicals")
 
@@ -248,7 +248,7 @@ def test_verdict_flips_where_condenser_capacity_equals_the_heat_load():
 @given(st.floats(min_value=10e3, max_value=2e6), st.floats(min_value=1.01, max_value=5.0))
 def test_more_condenser_duty_never_worsens_the_verdict(duty, factor):
     """Invariant (derived): a larger condenser never gives a worse verdict."""
-    from screen.barrier import VERDICT_ORDER
+    from screen.analyses.barrier import VERDICT_ORDER
 
     case = build_case(raw_case(**{"vessel.condenser_ua": None,
                                   "vessel.condenser_coolant_temperature": None,
@@ -335,7 +335,7 @@ def test_not_assessed_below_the_mtt_unless_asked():
 
 def test_simulated_mtsr_governs_when_higher():
     """governing_mtsr takes the simulation's feed-stopped MTSR only when it is higher."""
-    from screen.barrier import governing_mtsr
+    from screen.analyses.barrier import governing_mtsr
 
     results = {"mtsr_degC": 100.0, "simulation": {"mtsr_feed_stopped_degC": 120.0}}
     assert governing_mtsr(results) == (pytest.approx(120.0 + ZERO_CELSIUS), "simulation")

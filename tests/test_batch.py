@@ -1,4 +1,4 @@
-"""Tests of screen.portfolio and the ``runaway-screen batch`` command.
+"""Tests of screen.runs.portfolio and the ``runaway-screen batch`` command.
 
 Reference for "batch equals single case": the single-case engine as run by ``check``
 (screen.cli.run_check). The exit status contract is documented in docs/uncertainty.md
@@ -22,7 +22,7 @@ import pytest
 from click.testing import CliRunner
 
 from screen.cli import main, run_check
-from screen.portfolio import COLUMNS, collect_case_files, screen_portfolio
+from screen.runs.portfolio import COLUMNS, collect_case_files, screen_portfolio
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 CASES = ("esterification_batch.toml", "grignard_semibatch.toml", "nitration_semibatch.toml")

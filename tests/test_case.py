@@ -9,7 +9,7 @@ import textwrap
 
 import pytest
 
-from screen.case import SCHEMA, load_case
+from screen.io.case import SCHEMA, load_case
 from screen.errors import CaseError
 
 CASES = sorted(pathlib.Path(__file__).parent.parent.joinpath("cases").glob("*.toml"))

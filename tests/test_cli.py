@@ -184,9 +184,9 @@ def test_sweep_coolant_stability_flip_matches_semenov_root(tmp_path):
 
     from scipy.optimize import brentq
 
-    from screen.case import load_case
+    from screen.io.case import load_case
     from screen.constants import GAS_CONSTANT as R
-    from screen.engine import screen_case
+    from screen.runs.screening import screen_case
 
     case_path = ROOT / "cases" / "esterification_batch.toml"
     case = load_case(case_path)

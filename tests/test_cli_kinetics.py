@@ -1,4 +1,4 @@
-"""End-to-end tests of ``runaway-screen kinetics`` (screen.cli_kinetics) and the CSV readers.
+"""End-to-end tests of ``runaway-screen kinetics`` (screen.cli.kinetics) and the CSV readers.
 
 Input files are written here from thermograms simulated with scipy.integrate.solve_ivp from
 known kinetics (first order, E = 120 kJ/mol, A = 1e12 1/s, 800 J/g; the "truth" is the input),
@@ -22,10 +22,12 @@ import pytest
 from click.testing import CliRunner
 from scipy.integrate import solve_ivp
 
-from screen.cli_kinetics import analyse_kinetics, figures, kinetics_command
+from screen.analyses.kinetics import analyse_kinetics
+from screen.cli.kinetics import kinetics_command
+from screen.report.kinetics import figures
 from screen.constants import GAS_CONSTANT
 from screen.errors import CaseError, DataFileError
-from screen.thermograms import (canonical_unit, exotherm_direction_from_text, parse_quantity,
+from screen.io.thermograms import (canonical_unit, exotherm_direction_from_text, parse_quantity,
                                 read_peak_table, read_thermogram, split_column_name)
 
 TRUTH_E = 120e3  # J/mol
@@ -385,7 +387,7 @@ def test_ambiguous_direction_needs_flag(tmp_path, runner):
 
 
 def test_real_subprocess_error_has_no_traceback(tmp_path):
-    code = "from screen.cli_kinetics import kinetics_command; kinetics_command()"
+    code = "from screen.cli.kinetics import kinetics_command; kinetics_command()"
     proc = subprocess.run([sys.executable, "-c", code, str(tmp_path / "missing.csv")],
                           capture_output=True, text=True, cwd=ROOT, timeout=60)
     assert proc.returncode == 2

@@ -1,4 +1,4 @@
-"""Tests of screen.engine.screen_case: the core figures of one case against independent numbers.
+"""Tests of screen.analyses.engine.screen_case: the core figures of one case against independent numbers.
 
 Sources of the check values (named again beside each check):
 
@@ -24,9 +24,9 @@ import math
 import pytest
 from scipy.optimize import brentq
 
-from screen.case import build_case
+from screen.io.case import build_case
 from screen.constants import ZERO_CELSIUS
-from screen.engine import screen_case
+from screen.runs.screening import screen_case
 from scipy.constants import R as CODATA_GAS_CONSTANT  # CODATA value, not the project's constant
 
 T_P = 50.0 + ZERO_CELSIUS
@@ -165,8 +165,8 @@ def test_higher_simulated_mtsr_governs_the_class():
     (Stoessel 1993) applied to the simulated MTSR; the demo case supplies only the inputs."""
     import pathlib
 
-    from screen.case import load_case
-    from screen.engine import screen_case
+    from screen.io.case import load_case
+    from screen.runs.screening import screen_case
     from screen.models.criticality import criticality_class
 
     path = pathlib.Path(__file__).parent.parent / "cases" / "acylation_semibatch_kinetics.toml"
@@ -191,8 +191,8 @@ def test_vessel_without_semenov_structure_cannot_conclude(monkeypatch):
     safety figures, keeps its synthesis check, and the rest of the screening goes on."""
     import pathlib
 
-    from screen.case import load_case
-    from screen.engine import screen_case
+    from screen.io.case import load_case
+    from screen.runs.screening import screen_case
     from screen.errors import ModelDomainError
     from screen.models import semenov
 

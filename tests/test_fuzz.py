@@ -19,7 +19,7 @@ Two families:
    - the class printed equals the class table applied to the printed temperatures.
 
 2. Random strings (and other TOML values) in every quantity field of every section only ever
-   raise ScreenError from screen.case.build_case / load_case.
+   raise ScreenError from screen.io.case.build_case / load_case.
 
 Profiles: the default profile is derandomised and fast (about 60 cases per test); set
 HYPOTHESIS_PROFILE=deep for a long random run (see docs/fuzzing.md). The bundled cases are
@@ -40,7 +40,7 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from screen.case import SCHEMA, build_case, load_case
+from screen.io.case import SCHEMA, build_case, load_case
 from screen.errors import ScreenError
 from screen.models.criticality import criticality_class
 
@@ -201,7 +201,7 @@ def valid_cases(draw):
 
 def screen_text(text):
     """Screen TOML text in memory; returns the result or raises ScreenError."""
-    from screen.engine import screen_case
+    from screen.runs.screening import screen_case
 
     return screen_case(build_case(tomllib.loads(text), path="<fuzz>"), curves=False)
 
@@ -389,7 +389,7 @@ def test_random_values_in_quantity_fields_raise_only_screen_error(base, data):
         return
     STATS["field values accepted"] += 1
     # An accepted value must also screen, or fail with the project's own error.
-    from screen.engine import screen_case
+    from screen.runs.screening import screen_case
 
     reason = _known_open_defect(case)
     if reason:

@@ -24,9 +24,9 @@ import pytest
 from click.testing import CliRunner
 from scipy.optimize import brentq
 
-from screen.case import build_case
+from screen.io.case import build_case
 from screen.cli import main
-from screen.engine import screen_case
+from screen.runs.screening import screen_case
 from screen.errors import CaseError, ModelDomainError, SolverError
 from screen.models import criticality as crit
 
@@ -186,13 +186,13 @@ def test_fc7_unknown_severity_and_probability_read_as_the_worst_level():
 
 @pytest.mark.parametrize("target", ["tmrad", "td24"])
 def test_fc7_nan_from_a_model_stops_the_screening(monkeypatch, target):
-    import screen.engine
+    import screen.analyses.engine
     from screen.models import decomposition as dm
 
     if target == "tmrad":
         monkeypatch.setattr(dm, "tmrad", lambda *args, **kwargs: float("nan"))
     else:  # TD24 and TD8 come through a cached helper of the engine
-        monkeypatch.setattr(screen.engine, "characteristic_temperatures",
+        monkeypatch.setattr(screen.analyses.engine, "characteristic_temperatures",
                             lambda *args, **kwargs: (float("nan"), float("nan")))
     with pytest.raises(SolverError) as info:
         screened(raw())
@@ -258,14 +258,14 @@ def test_fc13_semi_batch_without_mass_ratio_is_flagged():
 
 def test_fc14_a_typo_in_a_true_false_override_is_an_error():
     with pytest.raises(CaseError) as info:
-        from screen.case import _apply_override
+        from screen.io.case import _apply_override
 
         _apply_override(raw(), "scenarios.double_charge=ture")
     assert info.value.key == "--set"
 
 
 def test_fc15_sweep_points_with_input_errors_are_kept_as_errors():
-    from screen.sweep import parse_vary, run_sweep
+    from screen.runs.sweep import parse_vary, run_sweep
 
     case = build_case(raw(), path="<test>")
     rows, flips = run_sweep(case, [parse_vary("process.temperature=90 degC:110 degC:3", case)])
@@ -279,7 +279,7 @@ def test_fc16_a_higher_simulated_mtsr_governs_the_class(tmp_path):
     # (0.16) is then not conservative and the class must rest on the simulated MTSR. The
     # bundled acylation case serves as structure only; the check is the class table applied to
     # the governing temperatures (Stoessel 1993).
-    from screen.case import load_case
+    from screen.io.case import load_case
 
     text = (ROOT / "cases" / "acylation_semibatch_kinetics.toml").read_text(encoding="utf-8")
     assert 'rate_constant = "6.0e-4 L/(mol s)"' in text

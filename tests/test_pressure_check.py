@@ -1,4 +1,4 @@
-"""Tests of screen.pressure_check (vapour and closed-vessel pressure in the screening result).
+"""Tests of screen.analyses.pressure (vapour and closed-vessel pressure in the screening result).
 
 The cases are invented parameter sets; expected values come from outside the project:
 
@@ -17,11 +17,11 @@ import pytest
 from click.testing import CliRunner
 from scipy.constants import R as CODATA_GAS_CONSTANT
 
-from screen.case import load_case
+from screen.io.case import load_case
 from screen.cli import main
 from screen.constants import ZERO_CELSIUS
-from screen.engine import screen_case
-from screen.pressure_check import clipped_vapour_pressure, closed_vessel_estimate
+from screen.runs.screening import screen_case
+from screen.analyses.pressure import clipped_vapour_pressure, closed_vessel_estimate
 
 chemicals = pytest.importorskip("chemicals")
 

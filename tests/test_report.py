@@ -186,11 +186,11 @@ def test_check_pdf_end_to_end_and_force(tmp_path):
 
 
 def test_onset_only_case_says_it_cannot_conclude_and_since_a_case_file(tmp_path, monkeypatch):
-    import screen.engine
+    import screen.analyses.engine
 
     # Only the core figures: this test is about presenting a fail-closed verdict, not about the
     # optional analyses (which have their own tests).
-    monkeypatch.setattr(screen.engine, "FEATURES", ())
+    monkeypatch.setattr(screen.analyses.engine, "_add_analyses", lambda case, result, curves: None)
     pdf = tmp_path / "onset.pdf"
     case = CASES / "amidation_onset_only.toml"
     _invoke(["report", case, "-o", pdf, "--set", "process.temperature=95 degC", "--since", case])
@@ -319,7 +319,7 @@ def test_since_must_be_a_result(tmp_path):
 
 
 def test_importing_the_report_modules_is_cheap():
-    code = ("import sys, screen.report, screen.cli_report; "
+    code = ("import sys, screen.report, screen.cli.report; "
             "heavy = ('reportlab', 'matplotlib', 'scipy', 'pint'); "
             "print(','.join(m for m in heavy if m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,

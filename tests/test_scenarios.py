@@ -1,4 +1,4 @@
-"""Tests of screen.scenarios: deviation scenarios, each screened in full.
+"""Tests of screen.runs.scenarios: deviation scenarios, each screened in full.
 
 Sources of the check values (named beside each test):
 
@@ -25,9 +25,9 @@ from pathlib import Path
 
 import pytest
 
-from screen.case import build_case, load_case
+from screen.io.case import build_case, load_case
 from screen.constants import GAS_CONSTANT, ZERO_CELSIUS
-from screen.engine import screen_case
+from screen.runs.screening import screen_case
 from screen.errors import CaseError, ModelDomainError
 
 REPOSITORY = Path(__file__).resolve().parents[1]
@@ -209,7 +209,7 @@ def test_contamination_divides_the_zero_order_tmrad_by_the_factor(decomposition)
 
 
 def test_wrong_coolant_replaces_every_vessel_coolant():
-    from screen import scenarios
+    from screen.runs import scenarios
 
     raw = raw_case(scenarios={"coolant_temperature": "45 degC"})
     raw["vessel"] = [dict(raw["vessel"]), dict(raw["vessel"], name="R2")]
@@ -248,7 +248,7 @@ def test_table_has_base_and_every_selected_deviation():
 
 
 def test_variants_do_not_run_scenarios_and_keep_the_evaporation_check():
-    from screen import scenarios
+    from screen.runs import scenarios
 
     case = build_case(raw_case(scenarios={"double_charge": True, "evaporation_check": True}),
                       path="t.toml")
@@ -263,7 +263,7 @@ def test_variants_do_not_run_scenarios_and_keep_the_evaporation_check():
 
 def test_a_variant_that_cannot_be_screened_is_reported_not_hidden(monkeypatch):
     """Fail closed: an error in one deviation becomes a row with the error and a warning."""
-    from screen import scenarios
+    from screen.runs import scenarios
 
     def broken(case, value):
         raise ModelDomainError("test: model outside its domain", "decomposition")
@@ -330,11 +330,11 @@ def kinetic_case(scenarios):
 def test_dosing_faster_with_kinetics_is_re_simulated():
     """With [synthesis_kinetics] the faster dosing is simulated (dosing_time / F); the row's MTSR
     is the higher of the case accumulation and the simulated feed-stopped worst case."""
-    pytest.importorskip("screen.simulation")
+    pytest.importorskip("screen.analyses.simulation")
     case, result = run(kinetic_case({"dosing_rate_factor": 4.0}))
     faster = row(result, "dosing_rate_factor")
     assert "re-simulated" in faster["basis"]
-    from screen import scenarios
+    from screen.runs import scenarios
 
     attempt = scenarios.BUILDERS["dosing_rate_factor"](case, 4.0)[0]
     assert attempt.case.sections["synthesis_kinetics"].dosing_time == pytest.approx(3600.0)

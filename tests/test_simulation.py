@@ -1,4 +1,4 @@
-"""Tests of screen.simulation (the cooling-failure simulation wired into the case and the engine).
+"""Tests of screen.analyses.simulation (the cooling-failure simulation wired into the case and the engine).
 
 The physics of the reactor model is tested in tests/test_reactor.py; here the case keys, the
 engine hook, the JSON members and the command line are checked. The cases below are invented
@@ -24,12 +24,12 @@ import numpy as np
 import pytest
 from click.testing import CliRunner
 
-from screen.case import build_case, load_case
+from screen.io.case import build_case, load_case
 from screen.cli import main
 from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR, ZERO_CELSIUS
-from screen.engine import screen_case
+from screen.runs.screening import screen_case
 from screen.errors import CaseError
-from screen.simulation import (
+from screen.analyses.simulation import (
     FULL_SCAN_POINTS,
     QUICK_SCAN_POINTS,
     DecompositionSource,
@@ -41,7 +41,7 @@ EXAMPLE = REPOSITORY / "cases" / "acylation_semibatch_kinetics.toml"
 HOUR = SECONDS_PER_HOUR
 
 # Keys whose value may be null in the JSON: "not reached within the simulated 24 h" and figures
-# that do not exist for the case (documented in screen.simulation.add_simulation).
+# that do not exist for the case (documented in screen.analyses.simulation.add_simulation).
 NULLABLE = {"time_to_mtt_h", "time_to_mtt_feed_continuing_h", "shortest_time_to_mtt_h",
             "accumulation_stated", "accumulation_stated_lower", "damkoehler_number",
             "synthesis_heat_release_rate_at_mtt_W_per_kg"}
@@ -294,7 +294,7 @@ def test_json_members_present_and_finite(example_json):
 
 
 def test_summary_lines_fit_the_terminal(example_json):
-    from screen.terminal import format_check
+    from screen.report.terminal import format_check
 
     lines = example_json["results"]["simulation"]["summary_lines"]
     assert lines[0].startswith("Cooling-failure simulation")

@@ -1,4 +1,4 @@
-"""Tests of screen.uncertainty (Monte Carlo propagation of input uncertainties).
+"""Tests of screen.runs.uncertainty (Monte Carlo propagation of input uncertainties).
 
 Check values come from outside the module under test:
 
@@ -10,7 +10,7 @@ Check values come from outside the module under test:
   (textbook large-sample results).
 * scipy.stats.spearmanr (a general-purpose reference library) for the rank correlation.
 * scipy.optimize.brentq, through screen.models.semenov.critical_point, for the vectorised
-  Semenov critical point; and the scalar engine (screen.engine.screen_case) for the vectorised
+  Semenov critical point; and the scalar engine (screen.analyses.engine.screen_case) for the vectorised
   TMRad, TD24 and MTSR.
 
 The case values below are arbitrary inputs chosen to give plant-like magnitudes; they are not
@@ -31,11 +31,11 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from screen.case import build_case, load_case
+from screen.io.case import build_case, load_case
 from screen.constants import ZERO_CELSIUS
-from screen.engine import screen_case
+from screen.runs.screening import screen_case
 from screen.errors import CaseError, ScreenError
-from screen import uncertainty as unc
+from screen.runs import uncertainty as unc
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 EXAMPLE = os.path.join(ROOT, "cases", "esterification_uncertain.toml")
@@ -235,7 +235,7 @@ def test_vectorised_critical_point_equals_brentq(e, q_ref, t_ref, mass, ua):
 
 def test_nominal_figures_with_losses_geometry_and_several_vessels_equal_engine():
     """Three vessels with areas from geometry, batch masses and losses to ambient: the
-    vectorised path at the case values equals the scalar engine (screen.vessels)."""
+    vectorised path at the case values equals the scalar engine (screen.analyses.vessels)."""
     case = load_case(os.path.join(ROOT, "cases", "nitration_semibatch.toml"),
                      overrides=["vessel.3.heat_losses=400 W/K",
                                 "vessel.3.ambient_temperature=30 degC"])

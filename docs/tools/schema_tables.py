@@ -1,6 +1,6 @@
-"""Print the key tables of docs/case-format.md from screen.case.SCHEMA (run by a developer)."""
+"""Print the key tables of docs/case-format.md from screen.io.schema.SCHEMA (run by a developer)."""
 
-from screen.case import SCHEMA
+from screen.io.schema import SCHEMA
 from screen.units import DIMENSIONS, EXAMPLES
 
 

@@ -1,4 +1,4 @@
-"""PDF screening summary of a :class:`screen.engine.ScreeningResult`.
+"""PDF screening summary of a :class:`screen.analyses.engine.ScreeningResult`.
 
 Public API: :func:`write_report`. Importing this package is cheap: reportlab and matplotlib are
 imported only when a report is written. The pages are laid out in :mod:`screen.report.pdf`, the
@@ -57,7 +57,7 @@ def write_report(result, path, force: bool = False, generated_at: str | None = N
 
     Parameters
     ----------
-    result : screen.engine.ScreeningResult
+    result : screen.analyses.engine.ScreeningResult
         The screening result to present.
     path : str or path-like
         Target PDF file.

@@ -23,8 +23,17 @@ import re
 from screen.report import figures
 from screen.report.layout import bullet, figure_block, paragraph, table
 from screen.report.style import (
-    FONT_BOLD, FRAME_WIDTH, MM, escape, format_celsius, format_generic, format_hours,
-    format_kelvin, format_ratio, format_significant, prose,
+    FONT_BOLD,
+    FRAME_WIDTH,
+    MM,
+    escape,
+    format_celsius,
+    format_generic,
+    format_hours,
+    format_kelvin,
+    format_ratio,
+    format_significant,
+    prose,
 )
 
 #: Result members added by optional analyses, in the order shown, with their headings.

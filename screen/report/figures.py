@@ -15,10 +15,16 @@ import numpy as np
 
 from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
 from screen.report.plot import Axes, add_text, clip_segment, spread_labels, text_width
-from screen.engine import to_celsius as _c
 from screen.report.style import (
-    ACCENT, FRAME_WIDTH, GREY_DARK, GREY_LIGHT, GREY_MID, GREY_PALE, INK,
+    ACCENT,
+    FRAME_WIDTH,
+    GREY_DARK,
+    GREY_LIGHT,
+    GREY_MID,
+    GREY_PALE,
+    INK,
 )
+from screen.units import to_celsius as _c
 
 #: Width of every figure [pt]: the text frame.
 WIDTH = FRAME_WIDTH
@@ -227,7 +233,7 @@ def semenov_diagram(curve: dict):
     Parameters
     ----------
     curve : dict
-        As built by :func:`screen.vessels._semenov_curve`: ``temperature_K``, ``generation_W``,
+        As built by :func:`screen.analyses.vessels._semenov_curve`: ``temperature_K``, ``generation_W``,
         ``removal_actual_W``, ``removal_critical_W``, ``coolant_temperature_K``,
         ``critical_coolant_temperature_K``, ``tangency_temperature_K``,
         ``no_return_temperature_K`` (or None), ``mtsr_K``, ``name``.

@@ -7,7 +7,6 @@ from __future__ import annotations
 
 from screen.report.style import FONT, FONT_BOLD, GREY_LIGHT, GREY_PALE, INK, escape
 
-
 #: Subscripts lowered by 28 % of the font size (reportlab's default of 50 % makes a subscript
 #: touch the next line of a tightly set list or table cell).
 SUBSCRIPT = '<sub rise="28%">'

@@ -28,10 +28,31 @@ from screen.report.layout import figure_block as _figure_block
 from screen.report.layout import paragraph as _p
 from screen.report.layout import table as _table
 from screen.report.style import (
-    ACCENT, FONT, FONT_BOLD, FRAME_WIDTH, GREY_DARK, GREY_LIGHT, GREY_PALE, INK,
-    MARGIN_BOTTOM, MARGIN_SIDE, MARGIN_TOP, MM, PAGE_HEIGHT, PAGE_WIDTH, escape, format_celsius,
-    format_energy, format_generic, format_hours, format_kelvin, format_ratio, format_significant,
-    paragraph_styles, prose, register_fonts,
+    ACCENT,
+    FONT,
+    FONT_BOLD,
+    FRAME_WIDTH,
+    GREY_DARK,
+    GREY_LIGHT,
+    GREY_PALE,
+    INK,
+    MARGIN_BOTTOM,
+    MARGIN_SIDE,
+    MARGIN_TOP,
+    MM,
+    PAGE_HEIGHT,
+    PAGE_WIDTH,
+    escape,
+    format_celsius,
+    format_energy,
+    format_generic,
+    format_hours,
+    format_kelvin,
+    format_ratio,
+    format_significant,
+    paragraph_styles,
+    prose,
+    register_fonts,
 )
 
 REPORT_TITLE = "Thermal runaway screening summary"
@@ -865,7 +886,7 @@ def _traceability_section(result, data, styles, since):
 
 
 def _changes_section(since, data, styles):
-    from screen.compare import diff_results
+    from screen.runs.compare import diff_results
 
     input_changes, result_changes = diff_results(since, data)
     old_case = since.get("case", {}) if isinstance(since, dict) else {}
@@ -906,7 +927,7 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
 
     Parameters
     ----------
-    result : screen.engine.ScreeningResult
+    result : screen.analyses.engine.ScreeningResult
     data : dict
         ``result.to_json_dict(generated_at)`` (computed once by the caller).
     stream : binary file object

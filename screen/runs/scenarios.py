@@ -4,7 +4,7 @@ A ``[scenarios]`` section selects deviations a review team asks about: a double 
 limiting reagent, dosing faster, dosing into a too-cold mass, loss of agitation during dosing, a
 wrong coolant temperature and a contaminated (faster) decomposition. Each deviation becomes a
 variant case (values replaced in SI, cross-checked again), runs through
-:func:`screen.engine.screen_case` without curves, and gives one row of a table: MTSR, TMRad at
+:func:`screen.analyses.engine.screen_case` without curves, and gives one row of a table: MTSR, TMRad at
 MTSR, criticality class, barrier verdict, and the change of each against the base case.
 
 The deviation models and their provenance are in ``docs/scenarios.md``; each row carries its own
@@ -23,21 +23,13 @@ import math
 import textwrap
 
 from screen.constants import GAS_CONSTANT, ZERO_CELSIUS
-from screen.errors import CaseError, ScreenError
+from screen.errors import ScreenError
+from screen.io.scenario_inputs import DEVIATIONS, _selected, check_case  # noqa: F401
 
 WIDTH = 78
 
-#: Deviation keys of [scenarios], in table order, with their row labels.
-DEVIATIONS = (
-    ("double_charge", "double charge"),
-    ("dosing_rate_factor", "dosing faster"),
-    ("dosing_temperature", "dosing too cold"),
-    ("agitation_loss", "agitation lost"),
-    ("coolant_temperature", "wrong coolant"),
-    ("decomposition_rate_factor", "contamination"),
-)
 
-#: Vessel stability outcomes from best to worst (screen.vessels).
+#: Vessel stability outcomes from best to worst (screen.analyses.vessels).
 STABILITY_ORDER = {"stable": 0, "mtsr-above-no-return": 1, "no-stable-point": 2}
 BARRIER_ORDER = {"not assessed": -1, "holds": 0, "doubtful": 1, "fails": 2}
 
@@ -57,67 +49,8 @@ METHOD_TEXT = (
 # Case checks
 
 
-def _selected(section) -> list[str]:
-    """Deviation keys switched on in a [scenarios] section."""
-    keys = []
-    for key, _ in DEVIATIONS:
-        value = section.get(key)
-        if value is None or value is False:
-            continue
-        keys.append(key)
-    return keys
 
 
-def check_case(sections, vessels, path, warnings) -> None:
-    """Cross-field checks of ``[scenarios]`` (called by :func:`screen.case.build_case`).
-
-    Parameters
-    ----------
-    sections : dict of str to screen.case.Section
-    vessels : sequence of screen.case.Section
-    path : str
-        Case file, for the error message.
-    warnings : list of str
-        Appended to when the section selects no deviation.
-
-    Raises
-    ------
-    CaseError
-        A deviation that the case cannot represent: dosing deviations or loss of agitation in a
-        batch process, a dosing temperature not below T_p, dosing faster with a piecewise feed
-        profile, a wrong coolant temperature without vessels, a contamination factor not above 1.
-    """
-    section = sections.get("scenarios")
-    if section is None:
-        return
-    process = sections["process"]
-    semi_batch = process.mode == "semi-batch"
-    kinetics = sections.get("synthesis_kinetics")
-    for key in ("dosing_rate_factor", "dosing_temperature", "agitation_loss"):
-        if section.get(key) not in (None, False) and not semi_batch:
-            raise CaseError(f"the {key.replace('_', ' ')} scenario needs a semi-batch process "
-                            f"(process.mode = \"semi-batch\"); a batch has no dosing",
-                            f"scenarios.{key}", path)
-    if section.dosing_rate_factor is not None and kinetics is not None \
-            and kinetics.feed_profile is not None:
-        raise CaseError("dosing faster is applied to synthesis_kinetics.dosing_time; with a "
-                        "piecewise feed_profile write the faster profile as its own case",
-                        "scenarios.dosing_rate_factor", path)
-    if section.dosing_temperature is not None \
-            and section.dosing_temperature >= process.temperature:
-        raise CaseError(f"dosing_temperature ({section.dosing_temperature - ZERO_CELSIUS:.1f} "
-                        f"degC) must be below the process temperature "
-                        f"({process.temperature - ZERO_CELSIUS:.1f} degC): the deviation is "
-                        f"dosing into a too-cold mass", "scenarios.dosing_temperature", path)
-    if section.coolant_temperature is not None and not vessels:
-        raise CaseError("the wrong-coolant scenario needs at least one [vessel]",
-                        "scenarios.coolant_temperature", path)
-    if section.decomposition_rate_factor is not None and section.decomposition_rate_factor <= 1.0:
-        raise CaseError(f"got {section.decomposition_rate_factor:g}; a contamination speeds up "
-                        f"the decomposition: the factor must be above 1",
-                        "scenarios.decomposition_rate_factor", path)
-    if not _selected(section) and not section.evaporation_check:
-        warnings.append("[scenarios] selects no deviation (all keys absent or false).")
 
 
 # --------------------------------------------------------------------------------------------
@@ -138,7 +71,7 @@ def make_variant(case, label, changes=None, vessel_changes=None, drop=()):
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
         Base case.
     label : str
         Name of the deviation (recorded in ``overrides`` and ``extras``).
@@ -151,11 +84,11 @@ def make_variant(case, label, changes=None, vessel_changes=None, drop=()):
 
     Returns
     -------
-    screen.case.Case
+    screen.io.case.Case
         The variant. Its ``[scenarios]`` keeps only ``evaporation_check`` and its ``extras``
         carry ``scenario_variant``, so it never runs scenarios itself.
     """
-    from screen.case import SCHEMA, Section, _check_consistency
+    from screen.io.case import SCHEMA, Section, _check_consistency
 
     sections = dict(case.sections)
     for name, values in (changes or {}).items():
@@ -347,7 +280,7 @@ def _wrong_coolant(case, temperature):
 
 
 def _contamination(case, factor):
-    from screen.engine import ONSET_ESTIMATE_ACTIVATION_ENERGY
+    from screen.analyses.inputs import ONSET_ESTIMATE_ACTIVATION_ENERGY
 
     dec = case.sections["decomposition"]
     if dec.reference_rate is not None:
@@ -383,7 +316,7 @@ BUILDERS = {
 
 def _figures_at(case, results, mtsr):
     """TMRad at MTSR [h] and class when the simulated MTSR governs (recomputed there)."""
-    from screen.engine import decomposition_kinetics
+    from screen.analyses.inputs import decomposition_kinetics
     from screen.models import criticality
     from screen.models import decomposition as dm
 
@@ -403,9 +336,9 @@ def row_figures(case, result) -> dict:
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
         The (variant) case screened.
-    result : screen.engine.ScreeningResult
+    result : screen.analyses.engine.ScreeningResult
 
     Returns
     -------
@@ -415,7 +348,7 @@ def row_figures(case, result) -> dict:
         ``accumulation_mass_ratio``, ``process_temperature_degC``, ``td24_degC``,
         ``mtsr_basis``.
     """
-    from screen.barrier import governing_mtsr
+    from screen.analyses.barrier import governing_mtsr
 
     r = result.results
     mtsr, basis = governing_mtsr(r)
@@ -449,7 +382,7 @@ def row_figures(case, result) -> dict:
 
 
 def _has_simulated_mtsr(result) -> bool:
-    from screen.barrier import SIMULATION_MTSR_KEY
+    from screen.analyses.barrier import SIMULATION_MTSR_KEY
 
     simulation = result.results.get("simulation")
     return isinstance(simulation, dict) and isinstance(simulation.get(SIMULATION_MTSR_KEY),
@@ -458,7 +391,7 @@ def _has_simulated_mtsr(result) -> bool:
 
 def _run(key, label, value, case):
     """Screen one deviation; a row dict (an input or model error is recorded, not raised)."""
-    from screen.engine import screen_case
+    from screen.analyses.engine import screen_case
 
     try:
         attempts = BUILDERS[key](case, value)
@@ -545,9 +478,9 @@ def add_scenarios(case, result, curves: bool = False) -> None:
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
         Base case with a ``[scenarios]`` section.
-    result : screen.engine.ScreeningResult
+    result : screen.analyses.engine.ScreeningResult
         Base result (barrier included); changed in place (results, warnings, methods).
     curves : bool
         False in sweeps and Monte Carlo samples: the scenarios are then skipped (each row costs
@@ -614,7 +547,7 @@ def _class_text(klass) -> str:
 
 
 def _hours(hours):
-    from screen.terminal import format_hours
+    from screen.report.terminal import format_hours
 
     return format_hours(hours)
 

@@ -9,7 +9,7 @@ import click
 
 def _load_any(path, overrides=()):
     """A JSON-ready result dict from a case file (.toml) or an earlier ``--json`` output."""
-    from screen.cli import run_check, timestamp
+    from screen.cli.common import run_check, timestamp
 
     if str(path).lower().endswith(".json"):
         return read_result_json(path)
@@ -25,7 +25,7 @@ def _reject_constant(name):
 
 
 def read_result_json(path) -> dict:
-    """An earlier ``check --json`` output, checked for the members :mod:`screen.compare` uses.
+    """An earlier ``check --json`` output, checked for the members :mod:`screen.runs.compare` uses.
 
     Raises
     ------
@@ -125,12 +125,12 @@ def format_comparison(old, new, input_changes, result_changes) -> str:
               help="Exit with status 1 when a verdict changed (for scripted reviews).")
 def compare_command(old, new, as_json, fail_on_verdict_change):
     """Compare two case files (or a case and an earlier --json result): what changed."""
-    from screen.cli import handle_errors
+    from screen.cli.common import handle_errors
 
     @handle_errors
     def run():
         from screen.cautions import CAUTIONS
-        from screen.compare import diff_results
+        from screen.runs.compare import diff_results
 
         old_data, new_data = _load_any(old), _load_any(new)
         input_changes, result_changes = diff_results(old_data, new_data)
@@ -164,14 +164,14 @@ def compare_command(old, new, as_json, fail_on_verdict_change):
 @click.option("--json", "as_json", is_flag=True, help="Print rows and flips as JSON.")
 def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
     """Run CASE_FILE over a range of one or two inputs; report where verdicts flip."""
-    from screen.cli import handle_errors
+    from screen.cli.common import handle_errors
 
     @handle_errors
     def run():
-        from screen.case import load_case
         from screen.cautions import CAUTIONS, SHORT_CAUTION
         from screen.errors import ScreenError
-        from screen.sweep import parse_vary, run_sweep, to_display
+        from screen.io.case import load_case
+        from screen.runs.sweep import parse_vary, run_sweep, to_display
 
         case = load_case(case_file, overrides=overrides)
         try:
@@ -181,7 +181,7 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
                             f"--vary {exc.key}" if exc.key else "--vary",
                             exc.path or str(case_file)) from None
         if csv_path:
-            from screen.fileio import check_writable
+            from screen.io.fileio import check_writable
 
             check_writable(csv_path, force)  # fail before the computation, not after it
         rows, flips = run_sweep(case, variations)
@@ -259,8 +259,8 @@ def _write_csv(rows, path, force, variations=()):
     import csv
     import io
 
-    from screen.fileio import write_atomic
-    from screen.sweep import to_display
+    from screen.io.fileio import write_atomic
+    from screen.runs.sweep import to_display
 
     # Varied inputs are written in SI and in the display unit, both named with their unit.
     renamed = []

@@ -21,13 +21,13 @@ def load_earlier_result(path) -> dict:
 
     path = str(path)
     if path.lower().endswith(".json"):
-        from screen.cli_compare import read_result_json
+        from screen.cli.compare import read_result_json
 
         try:
             return read_result_json(path)  # bounded read, same checks as `compare`
         except DataFileError as exc:
             raise DataFileError(exc.message, key="--since", path=path) from None
-    from screen.cli import run_check
+    from screen.cli.common import run_check
 
     return run_check(path).to_json_dict(generated_at=None)
 
@@ -46,11 +46,11 @@ def load_earlier_result(path) -> dict:
                    "table of what changed since.")
 def report_command(case_file, output, force, overrides, since_path):
     """Write the PDF screening summary of CASE_FILE (figures, inputs, methods, cautions)."""
-    from screen.cli import handle_errors
+    from screen.cli.common import handle_errors
 
     @handle_errors
     def run():
-        from screen.cli import run_check, timestamp
+        from screen.cli.common import run_check, timestamp
         from screen.report import check_output_path, write_report
 
         check_output_path(str(output), force)  # fail before the computation, not after it

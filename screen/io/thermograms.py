@@ -141,7 +141,7 @@ def parse_quantity(text, kind, option=None):
 MAX_CSV_BYTES = 20_000_000
 
 #: Temperatures accepted from DSC data and options [K]: -200 degC to 1000 degC (design, the
-#: same window as absolute temperatures in case files, screen.case.TEMPERATURE_RANGE_K).
+#: same window as absolute temperatures in case files, screen.io.case.TEMPERATURE_RANGE_K).
 TEMPERATURE_RANGE_K = (ZERO_CELSIUS - 200.0, ZERO_CELSIUS + 1000.0)
 
 

@@ -1,6 +1,6 @@
 """Differences between two screening results (reruns after a change). Presentation-neutral.
 
-Works on the JSON-ready dicts of :meth:`screen.engine.ScreeningResult.to_json_dict`, so an
+Works on the JSON-ready dicts of :meth:`screen.analyses.engine.ScreeningResult.to_json_dict`, so an
 earlier ``--json`` output can be compared with a fresh run of a case file.
 """
 

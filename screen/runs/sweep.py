@@ -15,7 +15,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
-from screen.case import (
+from screen.errors import CaseError, ScreenError
+from screen.io.case import (
     SCHEMA,
     Case,
     Section,
@@ -23,10 +24,9 @@ from screen.case import (
     check_temperature_range,
     parse_field_quantity,
 )
-from screen.errors import CaseError, ScreenError
 from screen.units import parse_dimensionless
 
-#: Result keys followed along a sweep (flattened names, see screen.compare.flatten_results).
+#: Result keys followed along a sweep (flattened names, see screen.runs.compare.flatten_results).
 SWEEP_FIGURES = ("mtsr_degC", "td24_degC", "tmrad_at_mtsr_h", "onset_margin_K",
                  "final_temperature_degC", "criticality_class")
 VESSEL_FIGURES = ("critical_coolant_temperature_degC", "no_return_temperature_degC",
@@ -157,7 +157,7 @@ def evaluate_point(case: Case, assignments) -> dict:
 
     An input error at a point (e.g. T_p above MTT) is recorded in the row, not raised.
     """
-    from screen.engine import screen_case
+    from screen.analyses.engine import screen_case
 
     row: dict = {}
     try:

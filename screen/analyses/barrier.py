@@ -12,8 +12,8 @@ Fail closed: a missing input never gives "holds". Without a ``[solvent]`` sectio
 capacity, a vapour-line diameter, a solvent amount or data for the heat release rate at the MTT,
 the vessel's verdict is "fails" with the reason "cannot assess ..." (not demonstrated).
 
-Hooks: :func:`check_case` (cross-field checks, called by :mod:`screen.case`) and
-:func:`add_barrier` (called by :mod:`screen.engine` for every case). Nothing here prints.
+Hooks: :func:`check_case` (cross-field checks, called by :mod:`screen.io.case`) and
+:func:`add_barrier` (called by :mod:`screen.analyses.engine` for every case). Nothing here prints.
 """
 
 from __future__ import annotations
@@ -21,8 +21,14 @@ from __future__ import annotations
 import math
 import textwrap
 
-from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR, STANDARD_ATMOSPHERE, ZERO_CELSIUS
+from screen.constants import (
+    GAS_CONSTANT,
+    SECONDS_PER_HOUR,
+    STANDARD_ATMOSPHERE,
+    ZERO_CELSIUS,
+)
 from screen.errors import CaseError, ScreenError
+from screen.io.barrier_inputs import check_case  # noqa: F401
 
 #: Terminal width of the summary lines [characters].
 WIDTH = 78
@@ -57,62 +63,6 @@ def _worst(verdicts) -> str:
 # Case checks
 
 
-def check_case(sections, vessels, path, warnings) -> None:
-    """Cross-field checks of the barrier inputs (called by :func:`screen.case.build_case`).
-
-    Parameters
-    ----------
-    sections : dict of str to screen.case.Section
-        Validated sections (SI values).
-    vessels : sequence of screen.case.Section
-        Validated vessels.
-    path : str
-        Case file, for the error message.
-    warnings : list of str
-        Appended to (not used at present).
-
-    Raises
-    ------
-    CaseError
-        A condenser given both as a duty and as U A, a U A without its coolant temperature (or
-        the reverse), an unknown solvent name, or more solvent than reaction mass at the failure.
-    """
-    multiple = len(vessels) > 1
-    for index, vessel in enumerate(vessels, start=1):
-        prefix = f"vessel.{index}" if multiple else "vessel"
-        if vessel.condenser_duty is not None and vessel.condenser_ua is not None:
-            raise CaseError("give the condenser capacity either as condenser_duty or as "
-                            "condenser_ua with condenser_coolant_temperature, not both",
-                            f"{prefix}.condenser_ua", path)
-        if vessel.condenser_ua is not None and vessel.condenser_coolant_temperature is None:
-            raise CaseError("condenser_ua needs condenser_coolant_temperature (mean coolant "
-                            "temperature of the condenser), e.g. \"20 degC\"",
-                            f"{prefix}.condenser_coolant_temperature", path)
-        if vessel.condenser_coolant_temperature is not None and vessel.condenser_ua is None:
-            raise CaseError("condenser_coolant_temperature is used only with condenser_ua; add "
-                            "condenser_ua or remove it", f"{prefix}.condenser_coolant_temperature",
-                            path)
-    solvent = sections.get("solvent")
-    if solvent is None:
-        return
-    if solvent.name is not None:
-        from screen.models import solvents
-
-        try:
-            solvents.lookup_solvent(solvent.name, key="solvent.name")
-        except CaseError as exc:
-            raise CaseError(exc.message, exc.key or "solvent.name", path) from None
-    if solvent.amount is not None:
-        process = sections["process"]
-        total = float(sections["mass"].amount)
-        ratio = 1.0
-        if process.mode == "semi-batch" and process.accumulation_mass_ratio is not None:
-            ratio = float(process.accumulation_mass_ratio)
-        if solvent.amount >= total * ratio:
-            raise CaseError(
-                f"solvent.amount ({solvent.amount:.4g} kg) is not below the reaction mass present "
-                f"at the failure ({total * ratio:.4g} kg = mass.amount x accumulation_mass_ratio); "
-                f"the solvent is part of the reaction mass", "solvent.amount", path)
 
 
 # --------------------------------------------------------------------------------------------
@@ -152,7 +102,7 @@ def solvent_properties(case, temperature) -> dict:
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
         The case; its ``[solvent]`` section is read.
     temperature : float
         Boiling temperature at which the mass is held (the MTT). [K]
@@ -285,7 +235,7 @@ def _kinetic_rate_bound(case, mtt, remaining_heat, mass_final, mass_failure):
 
 def _decomposition_at_mtt(case, mtt):
     """(kinetics, basis, rate of the mass as fed at MTT [W/kg], highest isothermal rate [W/kg])."""
-    from screen.engine import decomposition_kinetics
+    from screen.analyses.inputs import decomposition_kinetics
 
     kinetics, basis = decomposition_kinetics(case)
     fresh = float(kinetics.heat_release_rate(mtt))
@@ -294,7 +244,7 @@ def _decomposition_at_mtt(case, mtt):
         # f = a^m (1-a)^n peaks at a* = m/(m+n) (derived); isothermal rate at MTT there.
         m, n = float(kinetics.autocatalytic_order), float(kinetics.order)
         a0 = float(kinetics.initial_conversion)
-        star = 1.0 - 1e-9 if n == 0 else m / (m + n)  # same a* as screen.vessels
+        star = 1.0 - 1e-9 if n == 0 else m / (m + n)  # same a* as screen.analyses.vessels
         peak = max(fresh, float(kinetics.heat_release_rate(mtt, max(star, a0))))
     return kinetics, basis, fresh, peak
 
@@ -332,10 +282,10 @@ def assess_vessel(case, results, vessel, vessel_entry, context) -> dict:
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
     results : dict
         ``ScreeningResult.results`` with the core figures and ``vessels``.
-    vessel : screen.case.Section
+    vessel : screen.io.case.Section
         The vessel.
     vessel_entry : dict
         Its entry of ``results["vessels"]`` (fill fraction).
@@ -573,8 +523,8 @@ def add_barrier(case, result, curves: bool = False) -> None:
 
     Parameters
     ----------
-    case : screen.case.Case
-    result : screen.engine.ScreeningResult
+    case : screen.io.case.Case
+    result : screen.analyses.engine.ScreeningResult
         Core figures and vessels already computed; changed in place (results, warnings,
         methods, curves).
     curves : bool

@@ -15,7 +15,7 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR, ZERO_CELSIUS
 from screen.errors import CaseError, ScreenError
-from screen.engine import to_celsius as _c
+from screen.units import to_celsius as _c
 
 #: Fill fraction below which a warning is raised (stirrer and jacket coverage) [-] (design).
 LOW_FILL_FRACTION = 0.15
@@ -66,7 +66,7 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
     kinetics : screen.models.decomposition.DecompositionKinetics
     mtsr : float
         MTSR of the case. [K]
@@ -78,7 +78,10 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
     (list of dict, list of dict, list of str)
         JSON-ready entries, curve data for the Semenov diagrams, warnings.
     """
-    from screen.engine import characteristic_temperatures, synthesis_specific_energy
+    from screen.analyses.inputs import (
+        characteristic_temperatures,
+        synthesis_specific_energy,
+    )
     from screen.models import decomposition as dm
     from screen.models import semenov
 

@@ -132,7 +132,7 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
     screened gives a row with its error and never stops the batch. Exit status: 0 all cases
     screened; 1 some rows have errors (0 with --allow-errors); 2 bad arguments.
     """
-    from screen.cli import handle_errors
+    from screen.cli.common import handle_errors
 
     @handle_errors
     def run():
@@ -141,10 +141,10 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
         import sys
 
         from screen.cautions import CAUTIONS
-        from screen.cli import timestamp
+        from screen.cli.common import timestamp
         from screen.errors import CaseError
-        from screen.fileio import check_writable, write_atomic
-        from screen.portfolio import collect_case_files, screen_portfolio
+        from screen.io.fileio import check_writable, write_atomic
+        from screen.runs.portfolio import collect_case_files, screen_portfolio
 
         for item in paths:
             if not os.path.exists(item):
@@ -162,7 +162,7 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
             raise CaseError("is not an existing directory; create it first", "--pdf-dir",
                             pdf_dir)
         for text in overrides:  # a malformed --set is a bad argument (exit 2), not 80 row errors
-            from screen.case import SCHEMA
+            from screen.io.case import SCHEMA
 
             key = text.split("=", 1)[0].strip() if "=" in text else ""
             parts = key.split(".")

@@ -127,8 +127,8 @@ def screen_file(path, overrides=(), pdf_path=None, force=False, generated_at=Non
 
     row = _empty_row(path)
     try:
-        from screen.case import load_case
-        from screen.engine import screen_case
+        from screen.io.case import load_case
+        from screen.runs.screening import screen_case
 
         case = load_case(path, overrides=overrides)
         result = screen_case(case)
@@ -178,24 +178,15 @@ def _warm_up() -> None:
     Worker processes started by fork inherit them, instead of each paying the import time of
     scipy and pint again (about a second per worker).
     """
-    import importlib
-
     import scipy.integrate  # noqa: F401
     import scipy.optimize  # noqa: F401
 
-    from screen import case, engine
+    from screen.io import case  # noqa: F401
     from screen.models import decomposition, semenov  # noqa: F401
+    from screen.runs import screening  # noqa: F401  (engine and every analysis it composes)
     from screen.units import registry
 
     registry()
-    # The optional analyses the engine and the case loader call by name.
-    targets = [target for _, target in getattr(engine, "FEATURES", ())]
-    targets += list(getattr(case, "EXTRA_CHECKS", ()))
-    for target in targets:
-        try:
-            importlib.import_module(target.split(":")[0])
-        except Exception:  # noqa: BLE001 - a broken module shows up as error rows, not here
-            pass
 
 
 def _pdf_names(files, pdf_dir):

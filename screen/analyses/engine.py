@@ -1,6 +1,6 @@
 """The screening engine: composes the physical models into one traceable result.
 
-Input: a validated :class:`screen.case.Case` (SI floats). Output: a :class:`ScreeningResult`
+Input: a validated :class:`screen.io.case.Case` (SI floats). Output: a :class:`ScreeningResult`
 whose ``results`` mapping holds JSON-ready figures in the units named by each key, plus curves
 for figures, warnings, the method behind each figure and the cautions. Nothing here reads files
 or prints.
@@ -8,7 +8,6 @@ or prints.
 
 from __future__ import annotations
 
-import functools
 import math
 from dataclasses import dataclass, field
 from typing import Any
@@ -16,18 +15,22 @@ from typing import Any
 import numpy as np
 
 from screen import __version__
+from screen.analyses import barrier, pressure, simulation
+from screen.analyses.inputs import (
+    ONSET_ESTIMATE_ACTIVATION_ENERGY,
+    ONSET_ESTIMATE_DETECTION_LIMIT,
+    characteristic_temperatures,
+    decomposition_kinetics,
+    synthesis_specific_energy,
+)
+from screen.analyses.vessels import vessel_results
 from screen.cautions import CAUTIONS
-from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
+from screen.constants import ZERO_CELSIUS
 from screen.errors import ModelDomainError, ScreenError, SolverError
 from screen.models import criticality as crit
 from screen.models import thermal
+from screen.units import to_celsius, to_hours
 
-#: Crude onset-only estimate: zero order with a low activation energy, the DSC onset read as the
-#: temperature where the heat release reaches the detection limit of a dynamic DSC run
-#: (Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41; values from memory, design).
-#: The same constants as the crude estimate of the ``kinetics`` command (screen.models.dsc).
-ONSET_ESTIMATE_ACTIVATION_ENERGY = 50e3  # J/mol
-ONSET_ESTIMATE_DETECTION_LIMIT = 20.0  # W/kg
 #: Extrapolation of decomposition kinetics below the lowest measured temperature that triggers
 #: a warning [K] (design).
 EXTRAPOLATION_WARNING_K = 50.0
@@ -97,75 +100,7 @@ def _json_clean(obj):
     return obj
 
 
-def to_celsius(kelvin):
-    """Kelvin to degC for presentation [K -> degC]; None for a missing or non-finite value."""
-    if kelvin is None or not math.isfinite(float(kelvin)):
-        return None
-    return float(kelvin) - ZERO_CELSIUS
-
-
-def to_hours(seconds):
-    return None if seconds is None else float(seconds) / SECONDS_PER_HOUR
-
-
 # --------------------------------------------------------------------------------------------
-
-
-def decomposition_kinetics(case):
-    """Build the decomposition kinetics object from the case (SI).
-
-    Returns (kinetics, basis) where basis is ``"kinetics"`` or ``"onset-estimate"``.
-    """
-    from screen.models.decomposition import DecompositionKinetics
-
-    dec = case.sections["decomposition"]
-    if dec.model is None:
-        kinetics = DecompositionKinetics.from_reference_rate(
-            "zero-order", dec.energy, ONSET_ESTIMATE_ACTIVATION_ENERGY,
-            ONSET_ESTIMATE_DETECTION_LIMIT, dec.onset_temperature)
-        return kinetics, "onset-estimate"
-    common = dict(order=dec.get("order", 1.0 if dec.model == "nth-order" else 0.0),
-                  autocatalytic_order=dec.get("autocatalytic_order", 0.0),
-                  initial_conversion=dec.get("initial_conversion", 0.0))
-    if dec.model == "zero-order":
-        common["order"] = 0.0
-    if dec.reference_rate is not None:
-        kinetics = DecompositionKinetics.from_reference_rate(
-            dec.model, dec.energy, dec.activation_energy, dec.reference_rate,
-            dec.reference_temperature, **common)
-    else:
-        kinetics = DecompositionKinetics(
-            model=dec.model, energy=dec.energy, activation_energy=dec.activation_energy,
-            pre_exponential_factor=dec.pre_exponential_factor, **common)
-    return kinetics, "kinetics"
-
-
-@functools.lru_cache(maxsize=256)
-def _characteristic_temperatures(key, cp):
-    from screen.models import decomposition as dm
-
-    kinetics = dm.DecompositionKinetics(*key)
-    return float(dm.td24(kinetics, cp)), float(dm.td8(kinetics, cp))
-
-
-def characteristic_temperatures(kinetics, cp) -> tuple[float, float]:
-    """(TD24, TD8) [K] of scalar kinetics, cached: sweeps of vessel or process inputs do not
-    change them, and each costs a root search."""
-    key = (kinetics.model, float(kinetics.energy), float(kinetics.activation_energy),
-           float(kinetics.pre_exponential_factor), float(kinetics.order),
-           float(kinetics.autocatalytic_order), float(kinetics.initial_conversion),
-           None if kinetics.log_pre_exponential_factor is None
-           else float(kinetics.log_pre_exponential_factor))
-    return _characteristic_temperatures(key, float(cp))
-
-
-def synthesis_specific_energy(case) -> float:
-    """Heat of the desired reaction per kg of final mass [J/kg]."""
-    syn = case.sections["synthesis"]
-    if syn.energy is not None:
-        return float(syn.energy)
-    return float(thermal.specific_energy_from_molar(syn.molar_enthalpy, syn.limiting_amount,
-                                                    case.sections["mass"].amount))
 
 
 def _plausibility_warnings(case, synthesis_rise, decomposition_rise, warnings):
@@ -193,7 +128,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
         A validated case (SI values).
     curves : bool
         Also compute the curves for figures (off for sweeps and Monte Carlo).
@@ -394,7 +329,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
                              curves=curve_data)
     _add_vessels(case, result, kinetics, mtsr)
-    _add_features(case, result, curves)
+    _add_analyses(case, result, curves)
     _class_from_simulated_mtsr(result, t_p, mtt, td24)
     return result
 
@@ -443,23 +378,15 @@ def _class_from_simulated_mtsr(result, t_p, mtt, td24) -> None:
             f"{r['criticality_class_stated_mtsr']} to {new_class}. Check the stated accumulation.")
 
 
-#: Optional analyses composed after the core figures: (case section or None, "module:function").
-#: Each function is called as f(case, result, curves=bool) and adds its own "results" member.
-FEATURES = (
-    ("synthesis_kinetics", "screen.simulation:add_simulation"),
-    ("solvent", "screen.pressure_check:add_pressure"),
-    (None, "screen.barrier:add_barrier"),
-    ("scenarios", "screen.scenarios:add_scenarios"),
-)
-
-
-def _add_features(case, result, curves: bool) -> None:
-    from screen.hooks import resolve
-
-    for section, target in FEATURES:
-        if section is not None and section not in case.sections:
-            continue
-        resolve(target)(case, result, curves=curves)
+def _add_analyses(case, result, curves: bool) -> None:
+    """The analyses composed after the core figures, in order: the cooling-failure simulation
+    (with ``[synthesis_kinetics]``), the closed-vessel pressure (with ``[solvent]``) and the
+    evaporative-cooling barrier. Each adds its own ``results`` member."""
+    if "synthesis_kinetics" in case.sections:
+        simulation.add_simulation(case, result, curves=curves)
+    if "solvent" in case.sections:
+        pressure.add_pressure(case, result, curves=curves)
+    barrier.add_barrier(case, result, curves=curves)
 
 
 def maximum_technical_temperature(case, methods, warnings) -> float:
@@ -529,7 +456,6 @@ def _add_vessels(case, result: ScreeningResult, kinetics, mtsr) -> None:
                                "stability, temperature of no return, cooling capacity) is not "
                                "checked.")
         return
-    from screen.vessels import vessel_results
 
     entries, curves, warnings = vessel_results(case, kinetics, mtsr,
                                                result.results.get("tmrad_at_mtsr_h"))

@@ -1,7 +1,7 @@
 """Solvent vapour pressure and closed-vessel pressure after a runaway (engine feature).
 
-Called by :mod:`screen.engine` when the case has ``[solvent]``. The MTT from the solvent's
-boiling point is already set by ``screen.engine.maximum_technical_temperature``; this module adds
+Called by :mod:`screen.analyses.engine` when the case has ``[solvent]``. The MTT from the solvent's
+boiling point is already set by ``screen.analyses.engine.maximum_technical_temperature``; this module adds
 ``result.results["pressure"]``:
 
 - the vapour pressure of the solvent at the MTSR (the case figure and, when the simulation ran,
@@ -25,7 +25,7 @@ from typing import Any
 
 from screen.constants import STANDARD_ATMOSPHERE, ZERO_CELSIUS
 from screen.errors import CaseError, ScreenError
-from screen.engine import to_celsius as _c
+from screen.units import to_celsius as _c
 
 __all__ = ["add_pressure", "clipped_vapour_pressure", "closed_vessel_estimate"]
 
@@ -133,9 +133,9 @@ def add_pressure(case, result, curves: bool = True) -> None:
 
     Parameters
     ----------
-    case : screen.case.Case
+    case : screen.io.case.Case
         Validated case with ``[solvent]``.
-    result : screen.engine.ScreeningResult
+    result : screen.analyses.engine.ScreeningResult
         Result of the core screening (and of the simulation, which runs first), extended in
         place.
     curves : bool

@@ -1,0 +1,75 @@
+"""Model objects built once per screening from the validated case.
+
+The decomposition kinetics, its characteristic temperatures (TD24, TD8) and the synthesis heat are
+built here, once, and handed to every analysis that needs them (engine, vessels, simulation,
+barrier, scenarios, uncertainty), so that no analysis rebuilds them from the case sections.
+"""
+
+from __future__ import annotations
+
+import functools
+
+from screen.models import thermal
+
+#: Crude onset-only estimate: zero order with a low activation energy, the DSC onset read as the
+#: temperature where the heat release reaches the detection limit of a dynamic DSC run
+#: (Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41; values from memory, design).
+#: The same constants as the crude estimate of the ``kinetics`` command (screen.models.dsc).
+ONSET_ESTIMATE_ACTIVATION_ENERGY = 50e3  # J/mol
+ONSET_ESTIMATE_DETECTION_LIMIT = 20.0  # W/kg
+
+def decomposition_kinetics(case):
+    """Build the decomposition kinetics object from the case (SI).
+
+    Returns (kinetics, basis) where basis is ``"kinetics"`` or ``"onset-estimate"``.
+    """
+    from screen.models.decomposition import DecompositionKinetics
+
+    dec = case.sections["decomposition"]
+    if dec.model is None:
+        kinetics = DecompositionKinetics.from_reference_rate(
+            "zero-order", dec.energy, ONSET_ESTIMATE_ACTIVATION_ENERGY,
+            ONSET_ESTIMATE_DETECTION_LIMIT, dec.onset_temperature)
+        return kinetics, "onset-estimate"
+    common = dict(order=dec.get("order", 1.0 if dec.model == "nth-order" else 0.0),
+                  autocatalytic_order=dec.get("autocatalytic_order", 0.0),
+                  initial_conversion=dec.get("initial_conversion", 0.0))
+    if dec.model == "zero-order":
+        common["order"] = 0.0
+    if dec.reference_rate is not None:
+        kinetics = DecompositionKinetics.from_reference_rate(
+            dec.model, dec.energy, dec.activation_energy, dec.reference_rate,
+            dec.reference_temperature, **common)
+    else:
+        kinetics = DecompositionKinetics(
+            model=dec.model, energy=dec.energy, activation_energy=dec.activation_energy,
+            pre_exponential_factor=dec.pre_exponential_factor, **common)
+    return kinetics, "kinetics"
+
+
+@functools.lru_cache(maxsize=256)
+def _characteristic_temperatures(key, cp):
+    from screen.models import decomposition as dm
+
+    kinetics = dm.DecompositionKinetics(*key)
+    return float(dm.td24(kinetics, cp)), float(dm.td8(kinetics, cp))
+
+
+def characteristic_temperatures(kinetics, cp) -> tuple[float, float]:
+    """(TD24, TD8) [K] of scalar kinetics, cached: sweeps of vessel or process inputs do not
+    change them, and each costs a root search."""
+    key = (kinetics.model, float(kinetics.energy), float(kinetics.activation_energy),
+           float(kinetics.pre_exponential_factor), float(kinetics.order),
+           float(kinetics.autocatalytic_order), float(kinetics.initial_conversion),
+           None if kinetics.log_pre_exponential_factor is None
+           else float(kinetics.log_pre_exponential_factor))
+    return _characteristic_temperatures(key, float(cp))
+
+
+def synthesis_specific_energy(case) -> float:
+    """Heat of the desired reaction per kg of final mass [J/kg]."""
+    syn = case.sections["synthesis"]
+    if syn.energy is not None:
+        return float(syn.energy)
+    return float(thermal.specific_energy_from_molar(syn.molar_enthalpy, syn.limiting_amount,
+                                                    case.sections["mass"].amount))

@@ -1,0 +1,50 @@
+"""``runaway-screen check``: screen one case and print (or write) the result."""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+from screen.cli.common import handle_errors, run_check, timestamp
+
+
+@click.command("check")
+@click.argument("case_file", type=click.Path(dir_okay=False))
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+@click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
+              help="What-if override of a case value, e.g. --set 'process.temperature=70 degC'. "
+                   "Repeatable. Vessels: vessel.KEY (all) or vessel.N.KEY.")
+@click.option("--pdf", "pdf_path", type=click.Path(dir_okay=False), default=None,
+              help="Also write the PDF screening summary to this file.")
+@click.option("--force", is_flag=True, help="Overwrite an existing output file.")
+@click.option("--uncertainty", "samples", type=int, default=None, metavar="N",
+              help="Monte Carlo propagation of the uncertainties given in the case (N samples).")
+@click.option("--seed", type=int, default=20261201, show_default=True,
+              help="Random seed of the Monte Carlo propagation.")
+@handle_errors
+def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed):
+    """Screen CASE_FILE and print the figures, the class and the warnings."""
+    if pdf_path:
+        from screen.report import check_output_path
+
+        check_output_path(str(pdf_path), force)  # fail before the computation, not after it
+    result = run_check(case_file, overrides)
+    if samples is not None:
+        from screen.runs.uncertainty import add_uncertainty
+
+        add_uncertainty(result, samples=samples, seed=seed, progress=not as_json)
+    data = result.to_json_dict(generated_at=timestamp())
+    if pdf_path:
+        from screen.report import write_report
+
+        write_report(result, pdf_path, force=force, generated_at=data["generated_at"])
+    if as_json:
+        click.echo(json.dumps(data, indent=2, ensure_ascii=False))
+    else:
+        from screen.report.terminal import format_check
+
+        click.echo(format_check(data))
+        if pdf_path:
+            click.echo(f"\nPDF written to {pdf_path}")
+
