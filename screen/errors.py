@@ -63,3 +63,13 @@ class SolverError(ScreenError, RuntimeError):
 
 class OutputError(ScreenError, OSError):
     """An output file cannot be written (exists without --force, or not writable)."""
+
+
+class CaseFileNotFoundError(CaseError, FileNotFoundError):
+    """A case file that does not exist: a :class:`CaseError` (CLI exit status 2) that Python
+    code can also catch as the built-in :class:`FileNotFoundError`."""
+
+
+class MissingDependencyError(ScreenError, ImportError):
+    """An optional package needed for the requested output is not installed (e.g. matplotlib
+    for figures in a notebook); the message names the extra to install."""

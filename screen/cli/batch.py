@@ -171,16 +171,13 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
                 raise CaseError(f"--set {text!r}: expected SECTION.KEY=VALUE with a key of the "
                                 f"case schema, e.g. 'process.temperature=70 degC'", "--set")
         executor = _connect_scheduler(scheduler) if scheduler else None
-        bar = click.progressbar(length=len(files), label="Screening", file=sys.stderr,
-                                show_pos=True)
-        try:
-            with bar:
-                def progress(done, total, path):
-                    bar.update(1)
+        from screen.progress import ProgressBar
 
+        try:
+            with ProgressBar(len(files), "Screening", enabled=not as_json, unit="cases") as bar:
                 frame = screen_portfolio(files, workers=workers, executor=executor,
                                          overrides=overrides, pdf_dir=pdf_dir, force=force,
-                                         generated_at=timestamp(), progress=progress)
+                                         generated_at=timestamp(), progress=bar)
         finally:
             if executor is not None:
                 executor.close()

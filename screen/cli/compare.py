@@ -184,7 +184,13 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
             from screen.io.fileio import check_writable
 
             check_writable(csv_path, force)  # fail before the computation, not after it
-        rows, flips = run_sweep(case, variations)
+        from screen.progress import ProgressBar
+
+        total = 1
+        for variation in variations:
+            total *= len(variation.values)
+        with ProgressBar(total, "Sweep", enabled=not as_json, unit="points") as bar:
+            rows, flips = run_sweep(case, variations, progress=bar)
         if csv_path:
             _write_csv(rows, csv_path, force, variations)
         if as_json:

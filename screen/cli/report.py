@@ -51,13 +51,21 @@ def report_command(case_file, output, force, overrides, since_path):
     @handle_errors
     def run():
         from screen.cli.common import run_check, timestamp
+        from screen.progress import ProgressBar
         from screen.report import check_output_path, write_report
 
         check_output_path(str(output), force)  # fail before the computation, not after it
-        since = load_earlier_result(since_path) if since_path else None
-        result = run_check(case_file, overrides)
-        pages = write_report(result, output, force=force, generated_at=timestamp(),
-                             since=since)
+        steps = 3 if since_path else 2
+        with ProgressBar(steps, "Report", unit="steps") as bar:
+            since = None
+            if since_path:
+                since = load_earlier_result(since_path)
+                bar.advance()
+            result = run_check(case_file, overrides)
+            bar.advance()
+            pages = write_report(result, output, force=force, generated_at=timestamp(),
+                                 since=since)
+            bar.advance()
         klass = result.results.get("criticality_class")
         verdict = "no class: cannot conclude" if klass is None else f"criticality class {klass}"
         click.echo(f"PDF written to {output} ({pages} pages; {verdict}; "

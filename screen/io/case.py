@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from screen.constants import GAS_CONSTANT, ZERO_CELSIUS
-from screen.errors import CaseError
+from screen.errors import CaseError, CaseFileNotFoundError
 from screen.io.schema import (  # noqa: F401
     FREE_FORM_SECTIONS,
     MAX_ARRHENIUS_EXPONENT,
@@ -111,8 +111,8 @@ def read_case_text(path: str) -> tuple[dict, str]:
     import tomllib
 
     if not os.path.exists(path):
-        raise CaseError("file not found; give the path of a TOML case file (see cases/)",
-                        path=str(path))
+        raise CaseFileNotFoundError("file not found; give the path of a TOML case file (see "
+                                    "cases/)", path=str(path))
     if os.path.isdir(path):
         raise CaseError("is a directory; give the path of a TOML case file", path=str(path))
     try:
@@ -184,15 +184,27 @@ def _suggest(key: str, options) -> str:
 
 
 def _apply_override(raw: dict, text: str) -> None:
-    """Apply one ``KEY=VALUE`` override to the raw TOML dict, in place."""
+    """Apply one ``KEY=VALUE`` override (command line ``--set``) to the raw TOML dict."""
     if "=" not in text:
         raise CaseError(f"--set {text!r}: expected KEY=VALUE, e.g. --set 'process.temperature=70 degC'",
                         key="--set")
     key, value = (part.strip() for part in text.split("=", 1))
+    _apply_key_value(raw, key, value, f"--set {text!r}", "--set")
+
+
+def _apply_key_value(raw: dict, key: str, value, where: str, error_key: str | None) -> None:
+    """Set ``key`` (SECTION.KEY, vessel.KEY or vessel.N.KEY) to ``value`` in the raw TOML dict.
+
+    ``where`` opens every error message (``--set 'KEY=VALUE'`` on the command line,
+    ``overrides['KEY']`` from Python) and ``error_key`` is the key the error names.
+    """
+    text = where
+    if not isinstance(key, str):
+        raise CaseError(f"{text}: the key must be a string SECTION.KEY", key=error_key)
     parts = key.split(".")
     if len(parts) < 2 or parts[0] not in SCHEMA:
-        raise CaseError(f"--set {text!r}: the key must be SECTION.KEY with SECTION one of "
-                        f"{', '.join(SCHEMA)}", key="--set")
+        raise CaseError(f"{text}: the key must be SECTION.KEY with SECTION one of "
+                        f"{', '.join(SCHEMA)}", key=error_key)
     section = parts[0]
     targets: list[dict]
     if section == "vessel":
@@ -201,49 +213,98 @@ def _apply_override(raw: dict, text: str) -> None:
             vessels = [vessels]
             raw["vessel"] = vessels
         if not vessels:
-            raise CaseError(f"--set {text!r}: the case has no [vessel]", key="--set")
+            raise CaseError(f"{text}: the case has no [vessel]", key=error_key)
         if not isinstance(vessels, list) or not all(isinstance(v, dict) for v in vessels):
-            raise CaseError(f"--set {text!r}: vessel in the case is not a [vessel] table or "
-                            f"[[vessel]] tables", key="--set")
+            raise CaseError(f"{text}: vessel in the case is not a [vessel] table or "
+                            f"[[vessel]] tables", key=error_key)
         if len(parts) == 3:
             try:
                 index = int(parts[1])
             except ValueError:
-                raise CaseError(f"--set {text!r}: use vessel.KEY (all vessels) or vessel.N.KEY "
-                                f"(N = 1, 2, ... in file order)", key="--set") from None
+                raise CaseError(f"{text}: use vessel.KEY (all vessels) or vessel.N.KEY "
+                                f"(N = 1, 2, ... in file order)", key=error_key) from None
             if not 1 <= index <= len(vessels):
-                raise CaseError(f"--set {text!r}: vessel number {index} does not exist "
-                                f"(the case has {len(vessels)})", key="--set")
+                raise CaseError(f"{text}: vessel number {index} does not exist "
+                                f"(the case has {len(vessels)})", key=error_key)
             targets, name = [vessels[index - 1]], parts[2]
         elif len(parts) == 2:
             targets, name = list(vessels), parts[1]
         else:
-            raise CaseError(f"--set {text!r}: use vessel.KEY or vessel.N.KEY", key="--set")
+            raise CaseError(f"{text}: use vessel.KEY or vessel.N.KEY", key=error_key)
     else:
         if len(parts) != 2:
-            raise CaseError(f"--set {text!r}: the key must be SECTION.KEY", key="--set")
+            raise CaseError(f"{text}: the key must be SECTION.KEY", key=error_key)
         targets, name = [raw.setdefault(section, {})], parts[1]
         if not isinstance(targets[0], dict):
-            raise CaseError(f"--set {text!r}: [{section}] is not a table in the case", key="--set")
+            raise CaseError(f"{text}: [{section}] is not a table in the case", key=error_key)
     declared = SCHEMA[section]
     if name not in declared:
-        raise CaseError(f"--set {text!r}: [{section}] has no key {name!r}{_suggest(name, declared)}",
-                        key="--set")
+        raise CaseError(f"{text}: [{section}] has no key {name!r}{_suggest(name, declared)}",
+                        key=error_key)
     converted: Any = value
-    if declared[name].kind == "number":
-        try:
-            converted = float(value)
-        except ValueError:
-            converted = value  # "35 %" or "0.3 ± 0.05" is parsed later
-    elif declared[name].kind == "bool":
+    kind = declared[name].kind
+    if isinstance(value, bool) and kind != "bool":
+        raise CaseError(f"{text}: {section}.{name} needs {_accepted_override(kind)}, got "
+                        f"{value!r}", key=error_key)
+    if kind == "number":
+        if isinstance(value, str):
+            try:
+                converted = float(value)
+            except ValueError:
+                converted = value  # "35 %" or "0.3 ± 0.05" is parsed later
+        elif not isinstance(value, (int, float)):
+            raise CaseError(f"{text}: give a number or a string for {section}.{name}, got "
+                            f"{type(value).__name__}", key=error_key)
+    elif kind == "bool":
         # Strict: a typo such as "ture" must not silently become false.
         words = {"true": True, "yes": True, "1": True, "false": False, "no": False, "0": False}
-        if value.lower() not in words:
-            raise CaseError(f"--set {text!r}: {section}.{name} is true or false (yes/no, 1/0), "
-                            f"got {value!r}", key="--set")
-        converted = words[value.lower()]
+        if isinstance(value, bool):
+            converted = value
+        elif str(value).lower() not in words:
+            raise CaseError(f"{text}: {section}.{name} is true or false (yes/no, 1/0), "
+                            f"got {value!r}", key=error_key)
+        else:
+            converted = words[str(value).lower()]
+    elif not isinstance(value, str):
+        raise CaseError(f"{text}: {section}.{name} needs {_accepted_override(kind)}, got "
+                        f"{value!r}", key=error_key)
     for target in targets:
         target[name] = converted
+
+
+def _accepted_override(kind: str) -> str:
+    """What an override of a key of this kind accepts (for error messages)."""
+    if kind == "number":
+        return "a number"
+    if kind == "bool":
+        return "True or False"
+    if kind in ("text", "choice"):
+        return "a string"
+    return "a string with a unit, e.g. '70 degC'"
+
+
+def _override_items(overrides) -> list[tuple]:
+    """(text recorded in the case, key, value, error prefix, error key) per override.
+
+    ``overrides`` is a mapping ``{"process.temperature": "70 degC"}`` (Python) or an iterable of
+    ``"KEY=VALUE"`` strings (command line ``--set``).
+    """
+    from collections.abc import Mapping
+
+    if overrides is None:
+        return []
+    if isinstance(overrides, Mapping):
+        return [(f"{key}={value}", key, value, f"overrides[{key!r}] = {value!r}", None)
+                for key, value in overrides.items()]
+    if isinstance(overrides, str):
+        overrides = (overrides,)
+    items = []
+    for text in overrides:
+        if not isinstance(text, str):
+            raise CaseError(f"override {text!r}: give a mapping {{'SECTION.KEY': value}} or "
+                            f"'KEY=VALUE' strings", key="overrides")
+        items.append((text, None, None, None, None))
+    return items
 
 
 def parse_field_quantity(spec: Field, raw_value, key: str, path: str | None = None
@@ -350,8 +411,11 @@ def load_case(path, overrides=None) -> Case:
     ----------
     path : str or path-like
         TOML case file.
-    overrides : iterable of str, optional
-        ``KEY=VALUE`` what-if overrides applied before validation (``process.temperature=70 degC``).
+    overrides : mapping or iterable of str, optional
+        What-if overrides applied before validation: a mapping such as
+        ``{"process.temperature": "70 degC", "vessel.2.coolant_temperature": "5 degC"}``
+        (strings with units; numbers for dimensionless keys; True/False for switches), or
+        ``KEY=VALUE`` strings as given to ``--set`` (``"process.temperature=70 degC"``).
 
     Returns
     -------
@@ -361,17 +425,23 @@ def load_case(path, overrides=None) -> Case:
     ------
     CaseError
         With the file, key path, value received and what is accepted.
+    CaseFileNotFoundError
+        The file does not exist (also a :class:`FileNotFoundError`).
     """
-    path = str(path)
+    path = str(os.fspath(path))
+    items = _override_items(overrides)
     raw, digest = read_case_text(path)
     raw = copy.deepcopy(raw)
-    overrides = tuple(overrides or ())
-    for text in overrides:
+    for text, key, value, where, error_key in items:
         try:
-            _apply_override(raw, text)
+            if key is None:
+                _apply_override(raw, text)
+            else:
+                _apply_key_value(raw, key, value, where, error_key)
         except CaseError as exc:
             raise CaseError(exc.message, exc.key, path) from None
-    return build_case(raw, path=path, sha256=digest, overrides=overrides)
+    return build_case(raw, path=path, sha256=digest,
+                      overrides=tuple(text for text, *_ in items))
 
 
 def build_case(raw: dict, path: str = "<memory>", sha256: str = "", overrides=()) -> Case:

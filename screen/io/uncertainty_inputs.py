@@ -417,7 +417,10 @@ def _check_tails(marginal: Marginal, text: str, key: str, path) -> None:
 
 
 def _normal_cdf(x: float) -> float:
-    return 0.5 * math.erfc(-x / math.sqrt(2.0))
+    """Standard normal CDF, :func:`scipy.special.ndtr`."""
+    from scipy.special import ndtr
+
+    return float(ndtr(x))
 
 
 @dataclass(frozen=True)

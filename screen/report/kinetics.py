@@ -315,6 +315,10 @@ def figures(result):
         and onsets); only those the data allow.
     """
     import numpy as np
+
+    from screen.report.mpl import require_matplotlib
+
+    require_matplotlib("the kinetics figures")
     from matplotlib.figure import Figure
 
     from screen.models import dsc
@@ -412,9 +416,9 @@ def write_pngs(result, directory):
     list of pathlib.Path
         Files written (existing figures of the same name are replaced).
     """
-    import matplotlib
+    from screen.report.mpl import require_matplotlib
 
-    matplotlib.use("Agg")
+    require_matplotlib("the kinetics figures (--png-dir)").use("Agg")
     target = Path(directory)
     try:
         target.mkdir(parents=True, exist_ok=True)

@@ -50,22 +50,27 @@ _FONTS_REGISTERED = False
 
 
 def font_directory() -> str:
-    """Directory of the DejaVu fonts shipped with matplotlib (no system font needed).
+    """Directory of the DejaVu fonts for the PDF (no system font and no matplotlib needed).
 
-    Found without importing matplotlib (an import costs a noticeable part of a report run).
+    The fonts ship with the package (``screen/data``, DejaVu licence in ``LICENSE_DEJAVU``
+    there); an installation without them falls back to the copy inside matplotlib, found
+    without importing it.
     """
     import importlib.util
 
     from screen.errors import OutputError
 
+    bundled = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "data")
+    if os.path.isfile(os.path.join(bundled, "DejaVuSans.ttf")):
+        return bundled
     spec = importlib.util.find_spec("matplotlib")
-    if spec is None or not spec.submodule_search_locations:
-        raise OutputError("the PDF needs the DejaVu fonts shipped with matplotlib; install "
-                          "matplotlib (a dependency of runaway-screen)")
-    directory = os.path.join(list(spec.submodule_search_locations)[0], "mpl-data", "fonts", "ttf")
-    if not os.path.isfile(os.path.join(directory, "DejaVuSans.ttf")):
-        raise OutputError(f"DejaVu fonts not found in {directory}; reinstall matplotlib")
-    return directory
+    if spec is not None and spec.submodule_search_locations:
+        directory = os.path.join(list(spec.submodule_search_locations)[0], "mpl-data", "fonts",
+                                 "ttf")
+        if os.path.isfile(os.path.join(directory, "DejaVuSans.ttf")):
+            return directory
+    raise OutputError(f"the DejaVu fonts of the PDF are missing from {bundled}; reinstall "
+                      f"runaway-screen")
 
 
 def register_fonts() -> None:

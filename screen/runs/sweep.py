@@ -244,8 +244,17 @@ def locate_flips(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80, max_
     return found
 
 
-def run_sweep(case: Case, variations: list[Variation]):
+def run_sweep(case: Case, variations: list[Variation], progress=None):
     """Evaluate the grid and locate verdict flips along the first varied key.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case (SI values).
+    variations : list of Variation
+        One or two varied inputs (:func:`parse_vary`); the first is swept fastest.
+    progress : callable, optional
+        Called as ``progress(points done, points)`` after each grid point.
 
     Returns
     -------
@@ -257,6 +266,7 @@ def run_sweep(case: Case, variations: list[Variation]):
     first = variations[0]
     outer = variations[1].values if len(variations) == 2 else [None]
     rows, flips = [], []
+    total = len(first.values) * len(outer)
     for outer_value in outer:
         fixed = [] if outer_value is None else [(variations[1].key, float(outer_value))]
         previous = None
@@ -266,6 +276,8 @@ def run_sweep(case: Case, variations: list[Variation]):
                                                else {variations[1].key: float(outer_value)}),
                    **row}
             rows.append(row)
+            if progress is not None:
+                progress(len(rows), total)
             if previous is not None and _verdict_signature(previous[1]) != _verdict_signature(row):
                 for at, before, after in locate_flips(case, first.key, previous[0],
                                                       float(value), fixed):

@@ -87,6 +87,7 @@ __all__ = [
     "add_uncertainty",
     "average_ranks",
     "rank_correlation",
+    "rank_correlation_matrix",
 ]
 
 
@@ -622,6 +623,8 @@ def _compose(values, context, size, crit, dm):
 def average_ranks(values):
     """Ranks 1..n of a sample, ties sharing their average rank (as used by Spearman's rho).
 
+    :func:`scipy.stats.rankdata` with ``method="average"``.
+
     Parameters
     ----------
     values : array
@@ -632,46 +635,61 @@ def average_ranks(values):
     numpy.ndarray
         Ranks. [-]
     """
-    values = np.asarray(values, dtype=float).ravel()
-    order = np.argsort(values)  # ties get their average rank, so the sort need not be stable
-    ordered = values[order]
-    starts = np.concatenate(([True], ordered[1:] != ordered[:-1]))
-    group = np.cumsum(starts) - 1
-    first = np.flatnonzero(starts)
-    last = np.concatenate((first[1:], [values.size])) - 1
-    ranks = np.empty(values.size)
-    ranks[order] = 0.5 * (first + last)[group] + 1.0
-    return ranks
+    from scipy.stats import rankdata
+
+    return rankdata(np.asarray(values, dtype=float).ravel(), method="average")
 
 
 def rank_correlation(x, y):
     """Spearman rank correlation coefficient of two samples (average ranks for ties).
 
     rho = Pearson correlation of rank(x) and rank(y) (C. Spearman, Am. J. Psychol. 15 (1904)
-    72-101).
+    72-101), computed by :func:`scipy.stats.spearmanr`.
 
     Parameters
     ----------
     x, y : array
-        Samples of equal length, or their ranks from :func:`average_ranks`. ``inf`` ranks at
-        the ends; NaN is not accepted. [any]
+        Samples of equal length. ``inf`` ranks at the ends; NaN is not accepted. [any]
 
     Returns
     -------
     float or None
         rho in [-1, 1]; None when either sample is constant.
     """
-    return _pearson(average_ranks(x), average_ranks(y))
+    matrix = rank_correlation_matrix(np.column_stack([np.asarray(x, dtype=float).ravel(),
+                                                      np.asarray(y, dtype=float).ravel()]))
+    return _correlation_or_none(matrix[0, 1])
 
 
-def _pearson(rank_x, rank_y):
-    """Pearson correlation of two rank vectors; None if either is constant."""
-    rank_x = rank_x - rank_x.mean()
-    rank_y = rank_y - rank_y.mean()
-    denominator = math.sqrt(float(np.dot(rank_x, rank_x)) * float(np.dot(rank_y, rank_y)))
-    if denominator == 0.0:
-        return None
-    return float(np.clip(np.dot(rank_x, rank_y) / denominator, -1.0, 1.0))
+def rank_correlation_matrix(columns):
+    """Spearman rank correlations between all columns of a sample matrix (one rank per column).
+
+    Parameters
+    ----------
+    columns : array, shape (samples, variables)
+        One column per variable; ``inf`` ranks at the ends; NaN is not accepted. [any]
+
+    Returns
+    -------
+    numpy.ndarray, shape (variables, variables)
+        rho in [-1, 1]; NaN where a column is constant. [-]
+    """
+    import warnings
+
+    from scipy.stats import spearmanr
+
+    columns = np.asarray(columns, dtype=float)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # a constant column: NaN, reported as None
+        matrix = spearmanr(columns, axis=0).statistic
+    if np.ndim(matrix) == 0:  # two columns: scipy returns the one coefficient
+        matrix = np.array([[1.0, float(matrix)], [float(matrix), 1.0]])
+    return np.clip(matrix, -1.0, 1.0)
+
+
+def _correlation_or_none(value):
+    value = float(value)
+    return value if np.isfinite(value) else None
 
 
 def _spread(values, scale=1.0, offset=0.0, undefined=None):
@@ -764,8 +782,9 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
         Number of samples, 10 .. 5,000,000. [-]
     seed : int
         Seed of ``numpy.random.default_rng``, >= 0. [-]
-    progress : bool
-        Show a progress bar on stderr.
+    progress : bool or callable
+        True: a progress bar on stderr when it is a terminal (silent otherwise); a callable is
+        called as ``progress(samples done, samples)`` after each block.
     chunk : int
         Samples evaluated per block (does not change the numbers). [-]
 
@@ -799,27 +818,20 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
     _check_nominal(case, results, context, base, crit, dm)
     pieces: list[dict] = []
     starts = range(0, samples, max(1, int(chunk)))
-    bar = None
-    if progress:
-        import sys
+    from screen.progress import ProgressBar
 
-        import click
-
-        bar = click.progressbar(length=samples, label="Monte Carlo", file=sys.stderr,
-                                show_percent=True, show_eta=True)
-        bar.__enter__()
-    try:
+    # A callable receives (samples done, samples); True draws a bar on a terminal.
+    callback = progress if callable(progress) else None
+    with ProgressBar(samples, "Monte Carlo", enabled=progress is True, unit="samples") as bar:
         for start in starts:
             stop = min(samples, start + int(chunk))
             merged = dict(base)
             for key, array in input_values.items():
                 merged[key] = array[start:stop]
             pieces.append(_compose(merged, context, stop - start, crit, dm))
-            if bar is not None:
-                bar.update(stop - start)
-    finally:
-        if bar is not None:
-            bar.__exit__(None, None, None)
+            bar.update(stop)
+            if callback is not None:
+                callback(stop, samples)
     figures = {key: np.concatenate([piece[key] for piece in pieces]) for key in pieces[0]}
     return MonteCarloRun(samples, seed, inputs, correlation, not_propagated, input_values,
                          input_by_key, figures)
@@ -868,8 +880,9 @@ def add_uncertainty(result, samples: int = 20_000, seed: int = 20261201,
         Number of Monte Carlo samples. [-]
     seed : int
         Random seed (reported). [-]
-    progress : bool
-        Show a progress bar on stderr.
+    progress : bool or callable
+        True: a progress bar on stderr when it is a terminal (silent otherwise); a callable is
+        called as ``progress(samples done, samples)`` after each block.
 
     Returns
     -------
@@ -938,17 +951,16 @@ def summarise(run: MonteCarloRun, case, results):
     p_mtt = _fraction(mtsr >= mtt, n)
 
     # Sensitivity: rank correlation of each input with the margin and with TMRad at MTSR,
-    # undefined outputs ranked as the most critical.
-    # Ranks of the outputs once; Spearman's rho is the Pearson correlation of the ranks.
-    margin_ranked = average_ranks(np.where(np.isnan(margin), -np.inf, margin))
-    tmr_ranked = average_ranks(np.where(tmr_undefined, -np.inf, tmr))
+    # undefined outputs ranked as the most critical; every column is ranked once.
+    matrix = rank_correlation_matrix(np.column_stack(
+        [run.input_by_key[entry.key] for entry in run.inputs]
+        + [np.where(np.isnan(margin), -np.inf, margin), np.where(tmr_undefined, -np.inf, tmr)]))
     ranking = []
-    for entry in run.inputs:
-        x_ranked = average_ranks(run.input_by_key[entry.key])
+    for index, entry in enumerate(run.inputs):
         ranking.append({
             "key": entry.key,
-            "rank_correlation_onset_margin": _pearson(x_ranked, margin_ranked),
-            "rank_correlation_tmrad_at_mtsr": _pearson(x_ranked, tmr_ranked),
+            "rank_correlation_onset_margin": _correlation_or_none(matrix[index, -2]),
+            "rank_correlation_tmrad_at_mtsr": _correlation_or_none(matrix[index, -1]),
         })
     ranking.sort(key=lambda item: -max(abs(item["rank_correlation_onset_margin"] or 0.0),
                                        abs(item["rank_correlation_tmrad_at_mtsr"] or 0.0)))
