@@ -49,11 +49,13 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR
 from screen.errors import ModelDomainError, SolverError
+from screen.models.domain import require_fraction, require_positive, scalar_or_array
 
 __all__ = [
     "MODELS",
     "DecompositionKinetics",
     "validate_kinetics",
+    "log_townsend_tou_tmrad",
     "townsend_tou_tmrad",
     "semenov_b_number",
     "log_tmrad",
@@ -230,19 +232,17 @@ class DecompositionKinetics:
         """
         reference_rate = np.asarray(reference_rate, dtype=float)
         reference_temperature = np.asarray(reference_temperature, dtype=float)
-        _require_positive(reference_rate, "reference_rate", "W/kg",
-                          "decomposition.reference_rate")
-        _require_positive(reference_temperature, "reference_temperature", "K",
-                          "decomposition.reference_temperature")
+        require_positive(reference_rate, "reference_rate", "W/kg", key="decomposition.reference_rate")
+        require_positive(reference_temperature, "reference_temperature", "K", key="decomposition.reference_temperature")
         probe = cls(model, energy, activation_energy, 1.0, order, autocatalytic_order,
                     initial_conversion)
         log_rate_at_unit_factor = probe.log_heat_release_rate(reference_temperature)
         log_factor = np.log(reference_rate) - log_rate_at_unit_factor
         with np.errstate(over="ignore"):
             factor = np.exp(log_factor)
-        return cls(model, energy, activation_energy, _scalar_or_array(factor), order,
+        return cls(model, energy, activation_energy, scalar_or_array(factor), order,
                    autocatalytic_order, initial_conversion,
-                   log_pre_exponential_factor=_scalar_or_array(log_factor))
+                   log_pre_exponential_factor=scalar_or_array(log_factor))
 
     # -- rates --------------------------------------------------------------------------------
 
@@ -268,7 +268,7 @@ class DecompositionKinetics:
         """
         conversion = _check_conversion(conversion)
         with np.errstate(divide="ignore"):
-            return _scalar_or_array(np.exp(self._log_conversion_function(conversion)))
+            return scalar_or_array(np.exp(self._log_conversion_function(conversion)))
 
     def _log_conversion_function(self, conversion):
         """ln f(a); -inf where f = 0. Never 0 * log(0)."""
@@ -307,7 +307,7 @@ class DecompositionKinetics:
             A non-positive temperature or a conversion outside [0, 1].
         """
         temperature = np.asarray(temperature, dtype=float)
-        _require_positive(temperature, "temperature", "K")
+        require_positive(temperature, "temperature", "K")
         conversion = (np.asarray(self.initial_conversion, dtype=float) if conversion is None
                       else _check_conversion(conversion))
         log_rate = (np.log(self.energy) + np.asarray(self.log_pre_exponential_factor)
@@ -315,7 +315,7 @@ class DecompositionKinetics:
                     + self._log_conversion_function(conversion))
         if self.model != "zero-order":
             log_rate = log_rate - np.log1p(-np.asarray(self.initial_conversion))
-        return _scalar_or_array(log_rate)
+        return scalar_or_array(log_rate)
 
     def heat_release_rate(self, temperature, conversion=None):
         """Specific heat release rate q = Q/(1 - a0) A exp(-E/(R T)) f(a).
@@ -340,7 +340,7 @@ class DecompositionKinetics:
             A non-positive temperature or a conversion outside [0, 1].
         """
         with np.errstate(over="ignore", under="ignore"):
-            return _scalar_or_array(np.exp(self.log_heat_release_rate(temperature, conversion)))
+            return scalar_or_array(np.exp(self.log_heat_release_rate(temperature, conversion)))
 
     def with_rate_factor(self, factor):
         """The same kinetics with A multiplied by ``factor`` (e.g. a contamination scenario).
@@ -360,12 +360,12 @@ class DecompositionKinetics:
             A non-positive or non-finite factor.
         """
         factor = np.asarray(factor, dtype=float)
-        _require_positive(factor, "rate factor", "-")
+        require_positive(factor, "rate factor", "-")
         log_factor = np.asarray(self.log_pre_exponential_factor) + np.log(factor)
         with np.errstate(over="ignore"):
             new_factor = np.exp(log_factor)
-        return dataclasses.replace(self, pre_exponential_factor=_scalar_or_array(new_factor),
-                                   log_pre_exponential_factor=_scalar_or_array(log_factor))
+        return dataclasses.replace(self, pre_exponential_factor=scalar_or_array(new_factor),
+                                   log_pre_exponential_factor=scalar_or_array(log_factor))
 
 
 def _first_bad(values, bad_mask):
@@ -379,25 +379,12 @@ def _first_bad(values, bad_mask):
     return f"{bad_values[0]!r} ({bad_values.size} of {values.size} samples)"
 
 
-def _require_positive(values, name, unit, key=None):
-    values = np.asarray(values, dtype=float)
-    bad = ~(np.isfinite(values) & (values > 0.0))
-    if np.any(bad):
-        raise ModelDomainError(f"{name} must be finite and > 0 {unit}, got "
-                               f"{_first_bad(values, bad)}", key)
 
 
-def _check_conversion(conversion):
-    conversion = np.asarray(conversion, dtype=float)
-    bad = ~((conversion >= 0.0) & (conversion <= 1.0))
-    if np.any(bad):
-        raise ModelDomainError(f"conversion must lie in [0, 1], got {_first_bad(conversion, bad)}")
-    return conversion
+def _check_conversion(conversion) -> np.ndarray:
+    return np.asarray(require_fraction(conversion, "conversion"), dtype=float)
 
 
-def _scalar_or_array(values):
-    values = np.asarray(values)
-    return float(values) if values.ndim == 0 else values
 
 
 def validate_kinetics(kinetics, key_prefix="decomposition"):
@@ -513,12 +500,12 @@ def townsend_tou_tmrad(start_temperature, specific_heat, heat_release_rate, acti
     specific_heat = np.asarray(specific_heat, dtype=float)
     heat_release_rate = np.asarray(heat_release_rate, dtype=float)
     activation_energy = np.asarray(activation_energy, dtype=float)
-    _require_positive(start_temperature, "start_temperature", "K")
-    _require_positive(specific_heat, "specific_heat", "J/(kg K)")
-    _require_positive(heat_release_rate, "heat_release_rate", "W/kg")
-    _require_positive(activation_energy, "activation_energy", "J/mol")
-    return _scalar_or_array(specific_heat * GAS_CONSTANT * start_temperature ** 2
-                            / (heat_release_rate * activation_energy))
+    require_positive(start_temperature, "start_temperature", "K")
+    require_positive(specific_heat, "specific_heat", "J/(kg K)")
+    require_positive(heat_release_rate, "heat_release_rate", "W/kg")
+    require_positive(activation_energy, "activation_energy", "J/mol")
+    return scalar_or_array(np.exp(log_townsend_tou_tmrad(
+        start_temperature, specific_heat, np.log(heat_release_rate), activation_energy)))
 
 
 def semenov_b_number(start_temperature, adiabatic_rise, activation_energy):
@@ -552,8 +539,8 @@ def semenov_b_number(start_temperature, adiabatic_rise, activation_energy):
     22.5511
     """
     start_temperature = np.asarray(start_temperature, dtype=float)
-    _require_positive(start_temperature, "start_temperature", "K")
-    return _scalar_or_array(np.asarray(activation_energy, dtype=float)
+    require_positive(start_temperature, "start_temperature", "K")
+    return scalar_or_array(np.asarray(activation_energy, dtype=float)
                             * np.asarray(adiabatic_rise, dtype=float)
                             / (GAS_CONSTANT * start_temperature ** 2))
 
@@ -580,12 +567,50 @@ def _gauss_legendre(nodes):
     return np.polynomial.legendre.leggauss(nodes)
 
 
+def log_townsend_tou_tmrad(start_temperature, specific_heat, log_heat_release_rate,
+                           activation_energy):
+    """Natural log of the Townsend-Tou TMRad, ln(c'p R T0^2 / (q(T0) E)), free of overflow.
+
+    The one implementation of the formula: :func:`townsend_tou_tmrad`, the zero-order
+    :func:`tmrad`, :func:`tmrad_townsend_tou_for` and the DSC module all call it.
+
+    Parameters
+    ----------
+    start_temperature : float or array
+        Start temperature T0. [K]
+    specific_heat : float or array
+        Specific heat capacity c'p. [J/(kg K)]
+    log_heat_release_rate : float or array
+        ln(q(T0) / (W/kg)), the specific heat release rate at T0. [-]
+    activation_energy : float or array
+        Activation energy E. [J/mol]
+
+    Returns
+    -------
+    float or array
+        ln(TMRad / s). [-]
+
+    References
+    ----------
+    D. I. Townsend, J. C. Tou, "Thermal hazard evaluation by an accelerating rate calorimeter",
+    Thermochim. Acta 37 (1980) 1-30.
+
+    Examples
+    --------
+    >>> import math
+    >>> round(math.exp(log_townsend_tou_tmrad(400.0, 1800.0, math.log(0.1), 100e3)), 4)
+    239456.5234
+    """
+    return scalar_or_array(np.log(specific_heat * GAS_CONSTANT / activation_energy)
+                           + 2.0 * np.log(start_temperature) - log_heat_release_rate)
+
+
 def _log_zero_order_tmrad(energy, activation_energy, log_factor, start_temperature,
                           specific_heat):
     """ln TMRad of the Townsend-Tou formula with q = Q A exp(-E/(R T0)) (log space)."""
     log_rate = np.log(energy) + log_factor - activation_energy / (GAS_CONSTANT * start_temperature)
-    return (np.log(specific_heat * GAS_CONSTANT / activation_energy)
-            + 2.0 * np.log(start_temperature) - log_rate)
+    return np.asarray(log_townsend_tou_tmrad(start_temperature, specific_heat, log_rate,
+                                             activation_energy))
 
 
 def _log_consumption_tmrad(energy, activation_energy, log_factor, order, autocatalytic_order,
@@ -738,8 +763,8 @@ MINIMUM_START_TEMPERATURE = 1.0
 
 
 def _check_start(start_temperature, specific_heat, orders=()):
-    _require_positive(start_temperature, "start_temperature", "K")
-    _require_positive(specific_heat, "specific_heat", "J/(kg K)")
+    require_positive(start_temperature, "start_temperature", "K")
+    require_positive(specific_heat, "specific_heat", "J/(kg K)")
     if np.any(np.asarray(start_temperature) < MINIMUM_START_TEMPERATURE):
         raise ModelDomainError(f"start_temperature must be at least {MINIMUM_START_TEMPERATURE} K")
     for name, order in orders:
@@ -774,7 +799,7 @@ def log_tmrad(kinetics, start_temperature, specific_heat):
     shape, flat = _flatten(kinetics, start_temperature, specific_heat)
     _check_start(flat[6], flat[7], (("order", kinetics.order),
                                     ("autocatalytic_order", kinetics.autocatalytic_order)))
-    return _scalar_or_array(_log_tmrad_flat(kinetics.model, *flat).reshape(shape))
+    return scalar_or_array(_log_tmrad_flat(kinetics.model, *flat).reshape(shape))
 
 
 def tmrad(kinetics, start_temperature, specific_heat):
@@ -845,7 +870,7 @@ def tmrad(kinetics, start_temperature, specific_heat):
     239456.523
     """
     with np.errstate(over="ignore"):
-        return _scalar_or_array(np.exp(log_tmrad(kinetics, start_temperature, specific_heat)))
+        return scalar_or_array(np.exp(log_tmrad(kinetics, start_temperature, specific_heat)))
 
 
 def tmrad_townsend_tou_for(kinetics, start_temperature, specific_heat):
@@ -879,11 +904,11 @@ def tmrad_townsend_tou_for(kinetics, start_temperature, specific_heat):
     start_temperature = np.asarray(start_temperature, dtype=float)
     specific_heat = np.asarray(specific_heat, dtype=float)
     _check_start(start_temperature, specific_heat)
-    log_time = (np.log(specific_heat * GAS_CONSTANT / np.asarray(kinetics.activation_energy))
-                + 2.0 * np.log(start_temperature)
-                - np.asarray(kinetics.log_heat_release_rate(start_temperature)))
+    log_time = log_townsend_tou_tmrad(start_temperature, specific_heat,
+                                      np.asarray(kinetics.log_heat_release_rate(start_temperature)),
+                                      np.asarray(kinetics.activation_energy))
     with np.errstate(over="ignore"):
-        return _scalar_or_array(np.exp(log_time))
+        return scalar_or_array(np.exp(log_time))
 
 
 # ----------------------------------------------------------------------------------------------
@@ -1040,14 +1065,14 @@ def temperature_for_tmrad(kinetics, specific_heat, target_time, lower=DEFAULT_LO
     >>> round(tmrad(k, t, 1800.0) / 3600.0, 9)
     24.0
     """
-    _require_positive(specific_heat, "specific_heat", "J/(kg K)")
-    _require_positive(target_time, "target_time", "s")
-    _require_positive(lower, "lower", "K")
-    _require_positive(upper, "upper", "K")
+    require_positive(specific_heat, "specific_heat", "J/(kg K)")
+    require_positive(target_time, "target_time", "s")
+    require_positive(lower, "lower", "K")
+    require_positive(upper, "upper", "K")
     shape, flat = _flatten(kinetics, specific_heat, target_time, lower, upper)
     lower_flat, upper_flat = flat[8], flat[9]
     root, _ = _solve_temperature_for_tmrad(kinetics.model, flat[:8], lower_flat, upper_flat)
-    return _scalar_or_array((1.0 / root).reshape(shape))
+    return scalar_or_array((1.0 / root).reshape(shape))
 
 
 def _scalar_temperature_for(kinetics, specific_heat, target_time, label, lower, upper):
@@ -1058,10 +1083,10 @@ def _scalar_temperature_for(kinetics, specific_heat, target_time, label, lower, 
                                    f"(use temperature_for_tmrad for arrays)")
     if np.size(specific_heat) != 1:
         raise ModelDomainError(f"{label} needs a scalar specific heat")
-    _require_positive(specific_heat, "specific_heat", "J/(kg K)")
-    _require_positive(target_time, "target_time", "s")
-    _require_positive(lower, "lower", "K")
-    _require_positive(upper, "upper", "K")
+    require_positive(specific_heat, "specific_heat", "J/(kg K)")
+    require_positive(target_time, "target_time", "s")
+    require_positive(lower, "lower", "K")
+    require_positive(upper, "upper", "K")
     _, flat = _flatten(kinetics, specific_heat, target_time, lower, upper)
     root, status = _solve_temperature_for_tmrad(kinetics.model, flat[:8], flat[8], flat[9])
     if status[0] == _CONVERGED:
@@ -1093,6 +1118,42 @@ def _scalar_temperature_for(kinetics, specific_heat, target_time, label, lower, 
                   f"{lower:g} K and {upper_used:g} K")
     raise SolverError(f"{label} for the {kinetics.model} kinetics: {reason} (tried: {tried})",
                       "decomposition")
+
+
+def temperature_for_time_to_maximum_rate(kinetics, specific_heat, target_time,
+                                        lower=DEFAULT_LOWER_TEMPERATURE,
+                                        upper=DEFAULT_UPPER_TEMPERATURE):
+    """Start temperature at which TMRad equals ``target_time`` (scalar; TD24 for 24 h).
+
+    The one root search for T_D: :func:`td24`, :func:`td8` and the DSC module's zero-order
+    TD call it.
+
+    Parameters
+    ----------
+    kinetics : DecompositionKinetics
+        Decomposition kinetics (scalar fields).
+    specific_heat : float
+        Specific heat capacity c'p. [J/(kg K)]
+    target_time : float
+        TMRad sought. [s]
+    lower : float
+        Lowest temperature searched. [K]
+    upper : float
+        Highest temperature searched. [K]
+
+    Returns
+    -------
+    float
+        T_D. [K]
+
+    Raises
+    ------
+    SolverError
+        No root in [lower, upper]; the message gives TMRad at both ends.
+    """
+    hours = float(target_time) / SECONDS_PER_HOUR
+    return _scalar_temperature_for(kinetics, specific_heat, target_time, f"TD{hours:g}",
+                                   lower, upper)
 
 
 def td24(kinetics, specific_heat, lower=DEFAULT_LOWER_TEMPERATURE,
@@ -1303,7 +1364,7 @@ def adiabatic_course(kinetics, start_temperature, specific_heat, t_end=None, n_p
                                "heat")
     _check_start(start_temperature, specific_heat)
     if t_end is not None:
-        _require_positive(t_end, "t_end", "s")
+        require_positive(t_end, "t_end", "s")
         t_end = float(t_end)
     if int(n_points) < 4:
         raise ModelDomainError(f"n_points must be at least 4, got {n_points!r}")

@@ -1609,8 +1609,10 @@ def townsend_tou_time_to_maximum_rate(temperature, ln_heat_release_coefficient, 
         raise ModelDomainError("TMRad needs finite T, ln q_inf, E and c'p (got NaN or inf)")
     if activation_energy <= 0 or specific_heat <= 0 or np.any(temp <= 0):
         raise ModelDomainError("TMRad needs E > 0, c'p > 0 and T > 0 K")
+    from screen.models.decomposition import log_townsend_tou_tmrad
+
     ln_q = ln_heat_release_coefficient - activation_energy / (GAS_CONSTANT * temp)
-    ln_tmr = np.log(specific_heat * GAS_CONSTANT * temp**2 / activation_energy) - ln_q
+    ln_tmr = np.asarray(log_townsend_tou_tmrad(temp, specific_heat, ln_q, activation_energy))
     if np.any(ln_tmr > 700):
         raise ModelDomainError("TMRad beyond the floating-point range")
     result = np.exp(ln_tmr)
@@ -1637,41 +1639,35 @@ def zero_order_td(ln_heat_release_coefficient, activation_energy, specific_heat,
     Returns
     -------
     float
-        T_D with c'p R T^2/(q(T) E) = time_to_maximum_rate, by Brent's method. [K]
+        T_D with c'p R T^2/(q(T) E) = time_to_maximum_rate. [K]
 
     Notes
     -----
     ln TMR(T) = ln(c'p R T^2/E) - ln q_inf + E/(R T) falls monotonically with T while E > 2 R T
-    (derived), so the root in the bracket is unique; the bracket is cut at E/(2R).
+    (derived), so the root in the bracket is unique; the search (the one TD root search,
+    :func:`screen.models.decomposition.temperature_for_time_to_maximum_rate`) stays below E/(2R).
     """
-    from scipy.optimize import brentq
+    from screen.models.decomposition import (
+        DecompositionKinetics,
+        temperature_for_time_to_maximum_rate,
+    )
 
     values = (ln_heat_release_coefficient, activation_energy, specific_heat, time_to_maximum_rate)
     if not all(np.isfinite(v) for v in values):
         raise ModelDomainError("TD needs finite ln q_inf, E, c'p and target time (got NaN or inf)")
     if time_to_maximum_rate <= 0 or activation_energy <= 0 or specific_heat <= 0:
         raise ModelDomainError("target time, E and c'p must be positive")
-    low, high = bracket
-    high = min(high, 0.999 * activation_energy / (2.0 * GAS_CONSTANT))
-    if not high > low:
-        raise ModelDomainError("activation energy too low for a monotonic TMRad")
-
-    def g(temp):
-        ln_q = ln_heat_release_coefficient - activation_energy / (GAS_CONSTANT * temp)
-        return (math.log(specific_heat * GAS_CONSTANT * temp**2 / activation_energy) - ln_q
-                - math.log(time_to_maximum_rate))
-
-    g_low, g_high = g(low), g(high)
-    if g_low < 0:
-        raise ModelDomainError(
-            f"TMRad is shorter than the target already at {low - 273.15:.0f} degC: the material "
-            "is not stable at any temperature in the search range"
-        )
-    if g_high > 0:
-        raise ModelDomainError(
-            f"TMRad exceeds the target even at {high - 273.15:.0f} degC: no TD in the range"
-        )
-    return float(brentq(g, low, high, xtol=1e-6, rtol=1e-12))
+    # q(T) = q_inf exp(-E/(R T)) is a zero-order model with Q = 1 J/kg and ln A = ln q_inf.
+    with np.errstate(over="ignore"):
+        factor = math.exp(min(ln_heat_release_coefficient, 709.0))
+    kinetics = DecompositionKinetics("zero-order", 1.0, activation_energy,
+                                     factor if ln_heat_release_coefficient < 709.0 else math.inf,
+                                     order=0.0, log_pre_exponential_factor=ln_heat_release_coefficient)
+    try:
+        return temperature_for_time_to_maximum_rate(kinetics, specific_heat, time_to_maximum_rate,
+                                                    *bracket)
+    except SolverError as exc:
+        raise ModelDomainError(exc.message) from None
 
 
 def crude_td24_from_onset(onset_temperature, detection_limit=CRUDE_DETECTION_LIMIT,

@@ -34,6 +34,7 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT, STANDARD_GRAVITY
 from screen.errors import CaseError, ModelDomainError
+from screen.models.domain import require_non_negative, require_positive
 
 #: Fraction of a limit above which the verdict is "doubtful" (design, no source).
 DEFAULT_MARGIN = 0.20
@@ -63,12 +64,6 @@ SWELLING_REGIMES = {"churn-turbulent": (1.53, 1.5), "bubbly": (1.18, 1.2), "foam
 VERDICTS = ("holds", "doubtful", "fails")
 
 
-def _finite(value: float, name: str, unit: str, minimum: float = 0.0, strict: bool = True) -> float:
-    value = float(value)
-    if not math.isfinite(value) or value < minimum or (strict and value == minimum):
-        relation = ">" if strict else ">="
-        raise ModelDomainError(f"{name} must be finite and {relation} {minimum:g} {unit}, got {value} {unit}")
-    return value
 
 
 def vapour_mass_flow(heat_release_rate: float, latent_heat: float) -> float:
@@ -93,8 +88,8 @@ def vapour_mass_flow(heat_release_rate: float, latent_heat: float) -> float:
     ModelDomainError
         Negative heat release rate or non-positive latent heat.
     """
-    heat_release_rate = _finite(heat_release_rate, "heat release rate", "W", strict=False)
-    latent_heat = _finite(latent_heat, "latent heat", "J/kg")
+    heat_release_rate = require_non_negative(heat_release_rate, "heat release rate", "W")
+    latent_heat = require_positive(latent_heat, "latent heat", "J/kg")
     return heat_release_rate / latent_heat
 
 
@@ -118,8 +113,8 @@ def condenser_duty_needed(vapour_mass_flow: float, latent_heat: float) -> float:
     float
         Condenser duty needed. [W]
     """
-    vapour_mass_flow = _finite(vapour_mass_flow, "vapour mass flow", "kg/s", strict=False)
-    latent_heat = _finite(latent_heat, "latent heat", "J/kg")
+    vapour_mass_flow = require_non_negative(vapour_mass_flow, "vapour mass flow", "kg/s")
+    latent_heat = require_positive(latent_heat, "latent heat", "J/kg")
     return vapour_mass_flow * latent_heat
 
 
@@ -164,12 +159,12 @@ def condenser_capacity(
     if (duty is None) == (overall_conductance is None):
         raise CaseError("give the condenser capacity either as a duty or as U A with the coolant temperature, not both")
     if duty is not None:
-        return _finite(duty, "condenser duty", "W", strict=False)
+        return require_non_negative(duty, "condenser duty", "W")
     if coolant_temperature is None or boiling_temperature is None:
         raise CaseError("a condenser U A needs the coolant temperature and the boiling temperature")
-    overall_conductance = _finite(overall_conductance, "condenser U A", "W/K", strict=False)
-    coolant_temperature = _finite(coolant_temperature, "coolant temperature", "K")
-    boiling_temperature = _finite(boiling_temperature, "boiling temperature", "K")
+    overall_conductance = require_non_negative(overall_conductance, "condenser U A", "W/K")
+    coolant_temperature = require_positive(coolant_temperature, "coolant temperature", "K")
+    boiling_temperature = require_positive(boiling_temperature, "boiling temperature", "K")
     return overall_conductance * max(boiling_temperature - coolant_temperature, 0.0)
 
 
@@ -192,8 +187,8 @@ def condenser_margin(heat_release_rate: float, condenser_capacity: float) -> flo
     float
         Capacity minus the duty needed; negative when the condenser is overloaded. [W]
     """
-    heat_release_rate = _finite(heat_release_rate, "heat release rate", "W", strict=False)
-    condenser_capacity = _finite(condenser_capacity, "condenser capacity", "W", strict=False)
+    heat_release_rate = require_non_negative(heat_release_rate, "heat release rate", "W")
+    condenser_capacity = require_non_negative(condenser_capacity, "condenser capacity", "W")
     return condenser_capacity - heat_release_rate
 
 
@@ -219,9 +214,9 @@ def vapour_density_ideal_gas(molar_mass: float, pressure: float, temperature: fl
     float
         Vapour density. [kg/m^3]
     """
-    molar_mass = _finite(molar_mass, "molar mass", "kg/mol")
-    pressure = _finite(pressure, "pressure", "Pa")
-    temperature = _finite(temperature, "temperature", "K")
+    molar_mass = require_positive(molar_mass, "molar mass", "kg/mol")
+    pressure = require_positive(pressure, "pressure", "Pa")
+    temperature = require_positive(temperature, "temperature", "K")
     return molar_mass * pressure / (GAS_CONSTANT * temperature)
 
 
@@ -244,9 +239,9 @@ def vapour_velocity(vapour_mass_flow: float, vapour_density: float, diameter: fl
     float
         Superficial vapour velocity. [m/s]
     """
-    vapour_mass_flow = _finite(vapour_mass_flow, "vapour mass flow", "kg/s", strict=False)
-    vapour_density = _finite(vapour_density, "vapour density", "kg/m^3")
-    diameter = _finite(diameter, "diameter", "m")
+    vapour_mass_flow = require_non_negative(vapour_mass_flow, "vapour mass flow", "kg/s")
+    vapour_density = require_positive(vapour_density, "vapour density", "kg/m^3")
+    diameter = require_positive(diameter, "diameter", "m")
     return 4.0 * vapour_mass_flow / (vapour_density * math.pi * diameter**2)
 
 
@@ -258,8 +253,8 @@ def _counter_current_factor(liquid_density: float, vapour_density: float, counte
 
 
 def _densities(liquid_density: float, vapour_density: float) -> tuple[float, float]:
-    liquid_density = _finite(liquid_density, "liquid density", "kg/m^3")
-    vapour_density = _finite(vapour_density, "vapour density", "kg/m^3")
+    liquid_density = require_positive(liquid_density, "liquid density", "kg/m^3")
+    vapour_density = require_positive(vapour_density, "vapour density", "kg/m^3")
     if vapour_density >= liquid_density:
         raise ModelDomainError(
             f"vapour density {vapour_density:.4g} kg/m^3 is not below the liquid density {liquid_density:.4g} kg/m^3"
@@ -310,7 +305,7 @@ def wallis_flooding_velocity(
         Flooding vapour velocity. [m/s]
     """
     liquid_density, vapour_density = _densities(liquid_density, vapour_density)
-    line_diameter = _finite(line_diameter, "vapour line diameter", "m")
+    line_diameter = require_positive(line_diameter, "vapour line diameter", "m")
     factor = 1.0 + wallis_slope * (vapour_density / liquid_density) ** 0.25 if condensate_counter_current else 1.0
     dimensionless = (wallis_constant / factor) ** 2
     return dimensionless * math.sqrt(STANDARD_GRAVITY * line_diameter * (liquid_density - vapour_density) / vapour_density)
@@ -351,7 +346,7 @@ def kutateladze_flooding_velocity(
         Flooding vapour velocity. [m/s]
     """
     liquid_density, vapour_density = _densities(liquid_density, vapour_density)
-    surface_tension = _finite(surface_tension, "surface tension", "N/m")
+    surface_tension = require_positive(surface_tension, "surface tension", "N/m")
     factor = _counter_current_factor(liquid_density, vapour_density, condensate_counter_current)
     kutateladze = critical_kutateladze_number / factor**2
     return kutateladze * (surface_tension * STANDARD_GRAVITY * (liquid_density - vapour_density)) ** 0.25 / math.sqrt(
@@ -429,7 +424,7 @@ def bubble_rise_velocity(
     if regime not in SWELLING_REGIMES:
         raise CaseError(f"unknown vessel flow regime {regime!r}; accepted: {', '.join(SWELLING_REGIMES)}")
     liquid_density, vapour_density = _densities(liquid_density, vapour_density)
-    surface_tension = _finite(surface_tension, "surface tension", "N/m")
+    surface_tension = require_positive(surface_tension, "surface tension", "N/m")
     coefficient = SWELLING_REGIMES[regime][0]
     return coefficient * (surface_tension * STANDARD_GRAVITY * (liquid_density - vapour_density) / liquid_density**2) ** 0.25
 
@@ -510,9 +505,9 @@ def solvent_evaporated(accumulated_heat: float, sensible_heat_to_boiling: float,
     float
         Mass of solvent evaporated, if enough were present. [kg]
     """
-    accumulated_heat = _finite(accumulated_heat, "accumulated heat", "J", strict=False)
-    sensible_heat_to_boiling = _finite(sensible_heat_to_boiling, "sensible heat to boiling", "J", strict=False)
-    latent_heat = _finite(latent_heat, "latent heat", "J/kg")
+    accumulated_heat = require_non_negative(accumulated_heat, "accumulated heat", "J")
+    sensible_heat_to_boiling = require_non_negative(sensible_heat_to_boiling, "sensible heat to boiling", "J")
+    latent_heat = require_positive(latent_heat, "latent heat", "J/kg")
     return max(accumulated_heat - sensible_heat_to_boiling, 0.0) / latent_heat
 
 
@@ -539,10 +534,10 @@ def temperature_after_dry_out(
     float
         Final temperature. [K]
     """
-    remaining_heat = _finite(remaining_heat, "remaining heat", "J", strict=False)
-    boiling_temperature = _finite(boiling_temperature, "boiling temperature", "K")
-    residual_mass = _finite(residual_mass, "residual mass", "kg")
-    specific_heat_capacity = _finite(specific_heat_capacity, "specific heat capacity", "J/(kg K)")
+    remaining_heat = require_non_negative(remaining_heat, "remaining heat", "J")
+    boiling_temperature = require_positive(boiling_temperature, "boiling temperature", "K")
+    residual_mass = require_positive(residual_mass, "residual mass", "kg")
+    specific_heat_capacity = require_positive(specific_heat_capacity, "specific heat capacity", "J/(kg K)")
     return boiling_temperature + remaining_heat / (residual_mass * specific_heat_capacity)
 
 
@@ -589,16 +584,16 @@ def temperature_course(
     heat = np.asarray(heat_released, dtype=float)
     if not np.all(np.isfinite(heat)) or np.any(heat < 0.0):
         raise ModelDomainError("heat released must be finite and non-negative")
-    start_temperature = _finite(start_temperature, "start temperature", "K")
-    boiling_temperature = _finite(boiling_temperature, "boiling temperature", "K")
+    start_temperature = require_positive(start_temperature, "start temperature", "K")
+    boiling_temperature = require_positive(boiling_temperature, "boiling temperature", "K")
     if start_temperature > boiling_temperature:
         raise ModelDomainError(
             f"start temperature {start_temperature:g} K is above the boiling temperature {boiling_temperature:g} K"
         )
-    sensible = _finite(sensible_heat_to_boiling, "sensible heat to boiling", "J", strict=False)
-    solvent_mass = _finite(solvent_mass, "solvent mass", "kg", strict=False)
-    latent_heat = _finite(latent_heat, "latent heat", "J/kg")
-    residual_heat_capacity = _finite(residual_heat_capacity, "residual heat capacity", "J/K")
+    sensible = require_non_negative(sensible_heat_to_boiling, "sensible heat to boiling", "J")
+    solvent_mass = require_non_negative(solvent_mass, "solvent mass", "kg")
+    latent_heat = require_positive(latent_heat, "latent heat", "J/kg")
+    residual_heat_capacity = require_positive(residual_heat_capacity, "residual heat capacity", "J/K")
     dry_out = sensible + solvent_mass * latent_heat
     if sensible > 0.0:
         heating = start_temperature + (boiling_temperature - start_temperature) * heat / sensible
@@ -770,11 +765,11 @@ def evaluate_barrier(
     margin = float(margin)
     if not 0.0 <= margin < 1.0:
         raise ModelDomainError(f"margin must lie in [0, 1), got {margin}")
-    solvent_mass = _finite(solvent_mass, "solvent mass", "kg", strict=False)
-    residual = _finite(residual_heat_capacity, "residual heat capacity", "J/K")
+    solvent_mass = require_non_negative(solvent_mass, "solvent mass", "kg")
+    residual = require_positive(residual_heat_capacity, "residual heat capacity", "J/K")
     mass_flow = vapour_mass_flow(heat_release_rate, latent_heat)
     duty = condenser_duty_needed(mass_flow, latent_heat)
-    capacity = _finite(condenser_capacity, "condenser capacity", "W", strict=False)
+    capacity = require_non_negative(condenser_capacity, "condenser capacity", "W")
     density = vapour_density_ideal_gas(vapour_molar_mass, boiling_pressure, boiling_temperature)
     line_velocity = vapour_velocity(mass_flow, density, vapour_line_diameter)
     flooding = flooding_velocity_limit(liquid_density, density, vapour_line_diameter, surface_tension, condensate_counter_current)

@@ -20,23 +20,17 @@ Assumptions (each is stated in ``docs/evaporation.md``):
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from screen.constants import GAS_CONSTANT
 from screen.errors import CaseError, ModelDomainError
+from screen.models.domain import require_positive
 from screen.models.solvents import Solvent, vapour_pressure
 
 #: Default margin below the relief set pressure inside which the verdict is "near" (design).
 RELIEF_MARGIN = 0.10
 
 
-def _positive(value: float, name: str, unit: str, allow_zero: bool = False) -> float:
-    value = float(value)
-    if not math.isfinite(value) or value < 0.0 or (value == 0.0 and not allow_zero):
-        requirement = "non-negative" if allow_zero else "positive"
-        raise ModelDomainError(f"{name} must be {requirement} and finite, got {value} {unit}")
-    return value
 
 
 @dataclass(frozen=True)
@@ -85,9 +79,9 @@ def ideal_gas_pressure(gas_moles: float, temperature: float, volume: float) -> f
     ModelDomainError
         Negative amount, non-positive temperature or volume.
     """
-    gas_moles = _positive(gas_moles, "gas amount", "mol", allow_zero=True)
-    temperature = _positive(temperature, "temperature", "K")
-    volume = _positive(volume, "headspace volume", "m^3")
+    gas_moles = require_positive(gas_moles, "gas amount", "mol", allow_zero=True)
+    temperature = require_positive(temperature, "temperature", "K")
+    volume = require_positive(volume, "headspace volume", "m^3")
     return gas_moles * GAS_CONSTANT * temperature / volume
 
 
@@ -115,8 +109,8 @@ def decomposition_gas_moles(mass: float, specific_gas_yield: float, conversion: 
     ModelDomainError
         Negative mass or yield, or a conversion outside 0 to 1.
     """
-    mass = _positive(mass, "mass", "kg", allow_zero=True)
-    specific_gas_yield = _positive(specific_gas_yield, "specific gas yield", "mol/kg", allow_zero=True)
+    mass = require_positive(mass, "mass", "kg", allow_zero=True)
+    specific_gas_yield = require_positive(specific_gas_yield, "specific gas yield", "mol/kg", allow_zero=True)
     conversion = float(conversion)
     if not 0.0 <= conversion <= 1.0:
         raise ModelDomainError(f"conversion must lie between 0 and 1, got {conversion}")
@@ -170,9 +164,9 @@ def closed_vessel_pressure_components(
         Non-physical input, a temperature outside the vapour-pressure correlation, or an initial
         pressure below the solvent's partial pressure at closing (the liquid would have boiled).
     """
-    temperature = _positive(temperature, "temperature", "K")
-    headspace_volume = _positive(headspace_volume, "headspace volume", "m^3")
-    initial_pressure = _positive(initial_pressure, "initial pressure", "Pa", allow_zero=True)
+    temperature = require_positive(temperature, "temperature", "K")
+    headspace_volume = require_positive(headspace_volume, "headspace volume", "m^3")
+    initial_pressure = require_positive(initial_pressure, "initial pressure", "Pa", allow_zero=True)
     liquid_mole_fraction = float(liquid_mole_fraction)
     if not 0.0 < liquid_mole_fraction <= 1.0:
         raise ModelDomainError(f"liquid mole fraction must lie in (0, 1], got {liquid_mole_fraction}")
@@ -181,7 +175,7 @@ def closed_vessel_pressure_components(
     if initial_pressure > 0.0:
         if initial_temperature is None:
             raise CaseError("the temperature at which the vessel was closed is required with an initial pressure")
-        initial_temperature = _positive(initial_temperature, "initial temperature", "K")
+        initial_temperature = require_positive(initial_temperature, "initial temperature", "K")
         pad_gas_at_closing = initial_pressure - liquid_mole_fraction * vapour_pressure(solvent, initial_temperature)
         if pad_gas_at_closing < 0.0:
             raise ModelDomainError(
@@ -272,8 +266,8 @@ def relief_verdict(pressure: float, relief_set_pressure: float, margin: float = 
     ModelDomainError
         Non-positive or non-finite pressures, or a margin outside [0, 1).
     """
-    pressure = _positive(pressure, "pressure", "Pa")
-    relief_set_pressure = _positive(relief_set_pressure, "relief set pressure", "Pa")
+    pressure = require_positive(pressure, "pressure", "Pa")
+    relief_set_pressure = require_positive(relief_set_pressure, "relief set pressure", "Pa")
     margin = float(margin)
     if not 0.0 <= margin < 1.0:
         raise ModelDomainError(f"margin must lie in [0, 1), got {margin}")

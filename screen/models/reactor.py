@@ -52,6 +52,7 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT, SECONDS_PER_HOUR
 from screen.errors import ModelDomainError, SolverError
+from screen.models.domain import require_finite, require_non_negative, require_positive
 
 __all__ = [
     "SynthesisKinetics",
@@ -81,28 +82,10 @@ _MASS, _MOLES_A, _MOLES_B, _TEMPERATURE, _DECOMPOSITION, _DECOMPOSITION_HEAT = r
 _STATE_SIZE = 6
 
 
-def _require_finite(value: float, name: str) -> float:
-    try:
-        number = float(value)
-    except (TypeError, ValueError) as exc:
-        raise ModelDomainError(f"{name} must be a number, got {value!r}", key=name) from exc
-    if not math.isfinite(number):
-        raise ModelDomainError(f"{name} must be finite, got {value!r}", key=name)
-    return number
 
 
-def _require_positive(value: float, name: str) -> float:
-    number = _require_finite(value, name)
-    if number <= 0.0:
-        raise ModelDomainError(f"{name} must be > 0, got {value!r}", key=name)
-    return number
 
 
-def _require_non_negative(value: float, name: str) -> float:
-    number = _require_finite(value, name)
-    if number < 0.0:
-        raise ModelDomainError(f"{name} must be >= 0, got {value!r}", key=name)
-    return number
 
 
 # --------------------------------------------------------------------------------------------
@@ -153,9 +136,9 @@ class SynthesisKinetics:
                 f"first_order_reagent must be 'A' or 'B', got {self.first_order_reagent!r}",
                 key="first_order_reagent",
             )
-        _require_positive(self.pre_exponential_factor, "pre_exponential_factor")
-        _require_non_negative(self.activation_energy, "activation_energy")
-        enthalpy = _require_finite(self.molar_enthalpy, "molar_enthalpy")
+        require_positive(self.pre_exponential_factor, "pre_exponential_factor")
+        require_non_negative(self.activation_energy, "activation_energy")
+        enthalpy = require_finite(self.molar_enthalpy, "molar_enthalpy")
         if enthalpy >= 0.0:
             # A sign slip would silently remove the heat source: fail closed.
             raise ModelDomainError(
@@ -198,9 +181,9 @@ class SynthesisKinetics:
         SynthesisKinetics
             Kinetics with the equivalent pre-exponential factor.
         """
-        k_ref = _require_positive(rate_constant, "rate_constant")
-        t_ref = _require_positive(reference_temperature, "reference_temperature")
-        energy = _require_non_negative(activation_energy, "activation_energy")
+        k_ref = require_positive(rate_constant, "rate_constant")
+        t_ref = require_positive(reference_temperature, "reference_temperature")
+        energy = require_non_negative(activation_energy, "activation_energy")
         exponent = energy / (GAS_CONSTANT * t_ref)
         if exponent > 700.0:
             raise ModelDomainError(
@@ -266,12 +249,12 @@ class ReactorCharge:
     density: float
 
     def __post_init__(self):
-        _require_positive(self.initial_mass, "initial_mass")
-        _require_non_negative(self.initial_moles_a, "initial_moles_a")
-        _require_non_negative(self.initial_moles_b, "initial_moles_b")
-        _require_positive(self.initial_temperature, "initial_temperature")
-        _require_positive(self.specific_heat, "specific_heat")
-        _require_positive(self.density, "density")
+        require_positive(self.initial_mass, "initial_mass")
+        require_non_negative(self.initial_moles_a, "initial_moles_a")
+        require_non_negative(self.initial_moles_b, "initial_moles_b")
+        require_positive(self.initial_temperature, "initial_temperature")
+        require_positive(self.specific_heat, "specific_heat")
+        require_positive(self.density, "density")
 
 
 @dataclass(frozen=True)
@@ -307,9 +290,9 @@ class Feed:
     start_time: float = 0.0
 
     def __post_init__(self):
-        _require_non_negative(self.moles_b, "feed.moles_b")
-        _require_non_negative(self.mass, "feed.mass")
-        _require_positive(self.feed_temperature, "feed.feed_temperature")
+        require_non_negative(self.moles_b, "feed.moles_b")
+        require_non_negative(self.mass, "feed.mass")
+        require_positive(self.feed_temperature, "feed.feed_temperature")
         if self.mass == 0.0 and self.moles_b > 0.0:
             raise ModelDomainError("a feed with moles of B needs a mass > 0", key="feed.mass")
         if (self.dosing_time is None) == (self.profile is None):
@@ -324,8 +307,8 @@ class Feed:
 
     def _build_pieces(self) -> tuple[tuple[float, float, float], ...]:
         if self.dosing_time is not None:
-            duration = _require_positive(self.dosing_time, "feed.dosing_time")
-            start = _require_non_negative(self.start_time, "feed.start_time")
+            duration = require_positive(self.dosing_time, "feed.dosing_time")
+            start = require_non_negative(self.start_time, "feed.start_time")
             return ((start, start + duration, 1.0),)
         pieces = []
         try:
@@ -342,9 +325,9 @@ class Feed:
                     f"profile piece {index} must be (start_s, end_s, fraction), got {piece!r}",
                     key="feed.profile",
                 )
-            start = _require_non_negative(piece[0], f"feed.profile[{index}].start")
-            end = _require_finite(piece[1], f"feed.profile[{index}].end")
-            fraction = _require_non_negative(piece[2], f"feed.profile[{index}].fraction")
+            start = require_non_negative(piece[0], f"feed.profile[{index}].start")
+            end = require_finite(piece[1], f"feed.profile[{index}].end")
+            fraction = require_non_negative(piece[2], f"feed.profile[{index}].fraction")
             if end <= start:
                 raise ModelDomainError(
                     f"profile piece {index}: end {end!r} must be after start {start!r}",
@@ -427,9 +410,9 @@ class Cooling:
     fill_exponent: float = 0.0
 
     def __post_init__(self):
-        _require_non_negative(self.ua, "cooling.ua")
-        _require_positive(self.coolant_temperature, "cooling.coolant_temperature")
-        exponent = _require_non_negative(self.fill_exponent, "cooling.fill_exponent")
+        require_non_negative(self.ua, "cooling.ua")
+        require_positive(self.coolant_temperature, "cooling.coolant_temperature")
+        exponent = require_non_negative(self.fill_exponent, "cooling.fill_exponent")
         if exponent > 1.0:
             raise ModelDomainError(
                 f"fill_exponent must be within 0..1, got {self.fill_exponent!r}",
@@ -459,10 +442,8 @@ def _check_decomposition(decomposition) -> tuple[float, float]:
             "decomposition needs a heat_release_rate(temperature, conversion) method",
             key="decomposition",
         )
-    energy = _require_positive(getattr(decomposition, "energy", None), "decomposition.energy")
-    initial = _require_non_negative(
-        getattr(decomposition, "initial_conversion", None), "decomposition.initial_conversion"
-    )
+    energy = require_positive(getattr(decomposition, "energy", None), "decomposition.energy")
+    initial = require_non_negative(getattr(decomposition, "initial_conversion", None), "decomposition.initial_conversion")
     if initial >= 1.0:
         raise ModelDomainError(
             f"decomposition.initial_conversion must be < 1, got {initial!r}",
@@ -1023,12 +1004,12 @@ def simulate_normal_operation(
         raise ModelDomainError(
             f"method must be a stiff solver (LSODA, Radau, BDF), got {method!r}", key="method"
         )
-    rtol = _require_positive(relative_tolerance, "relative_tolerance")
+    rtol = require_positive(relative_tolerance, "relative_tolerance")
     if rtol > 1e-3:
         raise ModelDomainError(
             f"relative_tolerance must be <= 1e-3, got {rtol!r}", key="relative_tolerance"
         )
-    end_time = _require_positive(end_time, "end_time")
+    end_time = require_positive(end_time, "end_time")
     if int(output_points) < 2:
         raise ModelDomainError("output_points must be >= 2", key="output_points")
     if feed is not None and feed.is_empty:
@@ -1188,7 +1169,7 @@ def mtsr_profile(
     if adiabatic_rise_total is None:
         rise_final_mass = accumulated * heat / (normal.final_mass * specific_heat)
     else:
-        rise = _require_non_negative(adiabatic_rise_total, "adiabatic_rise_total")
+        rise = require_non_negative(adiabatic_rise_total, "adiabatic_rise_total")
         rise_final_mass = accumulation * rise
     mtsr = temperature + rise_final_mass * normal.final_mass / mass
     if normal.feed is not None:
@@ -1370,16 +1351,16 @@ def failure_continuation(
     FailureContinuation
         Temperature course, MTSR reached, time to MTT and to maximum rate, decomposition flag.
     """
-    t_f = _require_finite(failure_time, "failure_time")
+    t_f = require_finite(failure_time, "failure_time")
     if t_f < normal.start_time or t_f > normal.end_time:
         raise ModelDomainError(
             f"failure_time {t_f:.6g} s outside the normal operation [{normal.start_time:.6g}, "
             f"{normal.end_time:.6g}] s",
             key="failure_time",
         )
-    mtt = _require_positive(maximum_technical_temperature, "maximum_technical_temperature")
-    duration = _require_positive(duration, "duration")
-    trigger = _require_positive(trigger_fraction, "trigger_fraction")
+    mtt = require_positive(maximum_technical_temperature, "maximum_technical_temperature")
+    duration = require_positive(duration, "duration")
+    trigger = require_positive(trigger_fraction, "trigger_fraction")
     if trigger > 1.0:
         raise ModelDomainError("trigger_fraction must be within (0, 1]", key="trigger_fraction")
     balances = normal._balances
@@ -1709,14 +1690,14 @@ def worst_case_scan(
     if scan_interval is None:
         start, end = normal.start_time, normal.end_time
     else:
-        start = _require_finite(scan_interval[0], "scan_interval[0]")
-        end = _require_finite(scan_interval[1], "scan_interval[1]")
+        start = require_finite(scan_interval[0], "scan_interval[0]")
+        end = require_finite(scan_interval[1], "scan_interval[1]")
         if not normal.start_time <= start < end <= normal.end_time:
             raise ModelDomainError(
                 "scan_interval must lie within the simulated normal operation and be increasing",
                 key="scan_interval",
             )
-    mtt = _require_positive(maximum_technical_temperature, "maximum_technical_temperature")
+    mtt = require_positive(maximum_technical_temperature, "maximum_technical_temperature")
 
     def mtsr_vector(times):
         return mtsr_profile(normal, times).mtsr
@@ -1882,12 +1863,12 @@ def dosing_warnings(
     DosingAssessment
         Figures and warnings.
     """
-    limit = _require_non_negative(accumulation_limit, "accumulation_limit")
-    da_limit = _require_non_negative(damkoehler_limit, "damkoehler_limit")
+    limit = require_non_negative(accumulation_limit, "accumulation_limit")
+    da_limit = require_non_negative(damkoehler_limit, "damkoehler_limit")
     t_p = (
         normal.charge.initial_temperature
         if process_temperature is None
-        else _require_positive(process_temperature, "process_temperature")
+        else require_positive(process_temperature, "process_temperature")
     )
     balances = normal._balances
     warnings: list[DosingWarning] = []
@@ -1906,7 +1887,7 @@ def dosing_warnings(
             )
         )
     if stated_accumulation is not None:
-        stated = _require_non_negative(stated_accumulation, "stated_accumulation")
+        stated = require_non_negative(stated_accumulation, "stated_accumulation")
         if stated < maximum_accumulation:
             warnings.append(
                 DosingWarning(

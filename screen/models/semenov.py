@@ -35,6 +35,7 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT
 from screen.errors import ModelDomainError
+from screen.models.domain import require_non_negative, require_positive, scalar_or_array
 
 __all__ = [
     "CriticalPoint",
@@ -111,27 +112,10 @@ class CoolantSweep(NamedTuple):
 # Input checks -----------------------------------------------------------------------------------
 
 
-def _positive(name: str, value) -> np.ndarray:
-    array = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(array) | (array <= 0.0)
-    if np.any(bad):
-        shown = array[bad].flat[0] if array.ndim else float(array)
-        raise ModelDomainError(f"{name} = {shown!r} is out of range; accepted: a finite value > 0", key=name)
-    return array
 
 
-def _non_negative(name: str, value) -> np.ndarray:
-    array = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(array) | (array < 0.0)
-    if np.any(bad):
-        shown = array[bad].flat[0] if array.ndim else float(array)
-        raise ModelDomainError(f"{name} = {shown!r} is out of range; accepted: a finite value >= 0", key=name)
-    return array
 
 
-def _scalar_or_array(array):
-    array = np.asarray(array)
-    return array.item() if array.ndim == 0 else array
 
 
 def _log_specific_rate(temperature, reference_rate, reference_temperature, activation_energy):
@@ -168,11 +152,11 @@ def heat_generation(temperature, mass, reference_rate, reference_temperature, ac
     ModelDomainError
         For non-positive inputs or when the exponent would overflow.
     """
-    t = _positive("temperature", temperature)
-    m = _positive("mass", mass)
-    q_ref = _positive("reference_rate", reference_rate)
-    t_ref = _positive("reference_temperature", reference_temperature)
-    e = _positive("activation_energy", activation_energy)
+    t = require_positive(temperature, "temperature")
+    m = require_positive(mass, "mass")
+    q_ref = require_positive(reference_rate, "reference_rate")
+    t_ref = require_positive(reference_temperature, "reference_temperature")
+    e = require_positive(activation_energy, "activation_energy")
     exponent = -e / GAS_CONSTANT * (1.0 / t - 1.0 / t_ref)
     if np.any(exponent > _MAX_EXPONENT):
         raise ModelDomainError(
@@ -180,7 +164,7 @@ def heat_generation(temperature, mass, reference_rate, reference_temperature, ac
             "temperature for this activation energy",
             key="temperature",
         )
-    return _scalar_or_array(m * q_ref * np.exp(exponent))
+    return scalar_or_array(m * q_ref * np.exp(exponent))
 
 
 def heat_removal(temperature, ua, coolant_temperature, heat_losses=0.0, ambient_temperature=None):
@@ -204,16 +188,16 @@ def heat_removal(temperature, ua, coolant_temperature, heat_losses=0.0, ambient_
     float or numpy.ndarray
         ``Q = U A (T - T_c) + L (T - T_amb)``. [W] Negative when the jacket heats.
     """
-    t = _positive("temperature", temperature)
-    ua_ = _positive("ua", ua)
-    t_c = _positive("coolant_temperature", coolant_temperature)
-    losses = _non_negative("heat_losses", heat_losses)
+    t = require_positive(temperature, "temperature")
+    ua_ = require_positive(ua, "ua")
+    t_c = require_positive(coolant_temperature, "coolant_temperature")
+    losses = require_non_negative(heat_losses, "heat_losses")
     removed = ua_ * (t - t_c)
     if np.any(losses > 0.0):
         if ambient_temperature is None:
             raise ModelDomainError("heat_losses > 0 needs an ambient_temperature", key="ambient_temperature")
-        removed = removed + losses * (t - _positive("ambient_temperature", ambient_temperature))
-    return _scalar_or_array(removed)
+        removed = removed + losses * (t - require_positive(ambient_temperature, "ambient_temperature"))
+    return scalar_or_array(removed)
 
 
 def effective_cooling(ua, coolant_temperature, heat_losses, ambient_temperature):
@@ -237,12 +221,12 @@ def effective_cooling(ua, coolant_temperature, heat_losses, ambient_temperature)
         ``U A (T - T_c) + L (T - T_amb) = (U A + L)(T - T_eff)``. Pass them as ``ua`` and
         ``coolant_temperature`` to the functions of this module.
     """
-    ua_ = _positive("ua", ua)
-    t_c = _positive("coolant_temperature", coolant_temperature)
-    losses = _non_negative("heat_losses", heat_losses)
-    t_amb = _positive("ambient_temperature", ambient_temperature)
+    ua_ = require_positive(ua, "ua")
+    t_c = require_positive(coolant_temperature, "coolant_temperature")
+    losses = require_non_negative(heat_losses, "heat_losses")
+    t_amb = require_positive(ambient_temperature, "ambient_temperature")
     total = ua_ + losses
-    return float(total), _scalar_or_array((ua_ * t_c + losses * t_amb) / total)
+    return float(total), scalar_or_array((ua_ * t_c + losses * t_amb) / total)
 
 
 # Tangency and critical point --------------------------------------------------------------------
@@ -279,8 +263,8 @@ def tangency_temperature_for_coolant(coolant_temperature, activation_energy):
     E/R, far above any physical temperature, where the Arrhenius curve flattens). The second form
     avoids cancellation for large E/(R T_c).
     """
-    t_c = _positive("coolant_temperature", coolant_temperature)
-    e = _positive("activation_energy", activation_energy)
+    t_c = require_positive(coolant_temperature, "coolant_temperature")
+    e = require_positive(activation_energy, "activation_energy")
     four_epsilon = 4.0 * GAS_CONSTANT * t_c / e
     if np.any(four_epsilon >= 1.0):
         raise ModelDomainError(
@@ -288,7 +272,7 @@ def tangency_temperature_for_coolant(coolant_temperature, activation_energy):
             "accepted: E > 4 R T_c",
             key="activation_energy",
         )
-    return _scalar_or_array(2.0 * t_c / (1.0 + np.sqrt(1.0 - four_epsilon)))
+    return scalar_or_array(2.0 * t_c / (1.0 + np.sqrt(1.0 - four_epsilon)))
 
 
 def linearised_critical_temperature_difference(temperature, activation_energy):
@@ -313,9 +297,9 @@ def linearised_critical_temperature_difference(temperature, activation_energy):
     ``R T*^2/E`` because T* > T_c: with eps = R T_c/E, exact/linearised = 1 + 2 eps + O(eps^2)
     (derived from the series T*/T_c = 1 + eps + 2 eps^2 + ...).
     """
-    t = _positive("temperature", temperature)
-    e = _positive("activation_energy", activation_energy)
-    return _scalar_or_array(GAS_CONSTANT * t**2 / e)
+    t = require_positive(temperature, "temperature")
+    e = require_positive(activation_energy, "activation_energy")
+    return scalar_or_array(GAS_CONSTANT * t**2 / e)
 
 
 def critical_point(mass, ua, reference_rate, reference_temperature, activation_energy) -> CriticalPoint:
@@ -355,11 +339,11 @@ def critical_point(mass, ua, reference_rate, reference_temperature, activation_e
     """
     from scipy.optimize import brentq
 
-    m = float(_positive("mass", mass))
-    ua_ = float(_positive("ua", ua))
-    q_ref = float(_positive("reference_rate", reference_rate))
-    t_ref = float(_positive("reference_temperature", reference_temperature))
-    e = float(_positive("activation_energy", activation_energy))
+    m = float(require_positive(mass, "mass"))
+    ua_ = float(require_positive(ua, "ua"))
+    q_ref = float(require_positive(reference_rate, "reference_rate"))
+    t_ref = float(require_positive(reference_temperature, "reference_temperature"))
+    e = float(require_positive(activation_energy, "activation_energy"))
     target = math.log(ua_ * GAS_CONSTANT / (m * e))
 
     def g(t: float) -> float:
@@ -397,12 +381,12 @@ def _intersections(mass, ua, coolant_temperature, reference_rate, reference_temp
     """(stable, no-return) intersections for one coolant temperature; (None, None) if supercritical."""
     from scipy.optimize import brentq
 
-    m = float(_positive("mass", mass))
-    ua_ = float(_positive("ua", ua))
-    t_c = float(_positive("coolant_temperature", coolant_temperature))
-    q_ref = float(_positive("reference_rate", reference_rate))
-    t_ref = float(_positive("reference_temperature", reference_temperature))
-    e = float(_positive("activation_energy", activation_energy))
+    m = float(require_positive(mass, "mass"))
+    ua_ = float(require_positive(ua, "ua"))
+    t_c = float(require_positive(coolant_temperature, "coolant_temperature"))
+    q_ref = float(require_positive(reference_rate, "reference_rate"))
+    t_ref = float(require_positive(reference_temperature, "reference_temperature"))
+    e = float(require_positive(activation_energy, "activation_energy"))
     t_low, t_high = _tangency_roots(t_c, e)
     log_m = math.log(m)
 
@@ -528,10 +512,10 @@ def semenov_number(mass, ua, coolant_temperature, reference_rate, reference_temp
         2nd ed. 1985, app. B). With the exact tangency the critical value is
         ``x^2 exp(-x)``, ``x = T*/T_c``, i.e. 1/e (1 + R T_c/E + ...) (derived).
     """
-    t_c = _positive("coolant_temperature", coolant_temperature)
-    e = _positive("activation_energy", activation_energy)
+    t_c = require_positive(coolant_temperature, "coolant_temperature")
+    e = require_positive(activation_energy, "activation_energy")
     generation = np.asarray(heat_generation(t_c, mass, reference_rate, reference_temperature, e))
-    return _scalar_or_array(e / (GAS_CONSTANT * t_c**2) * generation / _positive("ua", ua))
+    return scalar_or_array(e / (GAS_CONSTANT * t_c**2) * generation / require_positive(ua, "ua"))
 
 
 def cooling_time_constant(mass, specific_heat, ua):
@@ -552,7 +536,7 @@ def cooling_time_constant(mass, specific_heat, ua):
         ``tau = m c'p/(U A)``. [s] At the exact tangency temperature it equals the Townsend-Tou
         TMRad, ``c'p R T*^2/(q(T*) E)`` (derived from the tangency condition).
     """
-    return _scalar_or_array(_positive("mass", mass) * _positive("specific_heat", specific_heat) / _positive("ua", ua))
+    return scalar_or_array(require_positive(mass, "mass") * require_positive(specific_heat, "specific_heat") / require_positive(ua, "ua"))
 
 
 # Synthesis (normal operation) checks ------------------------------------------------------------
@@ -575,9 +559,7 @@ def cooling_capacity(ua, process_temperature, coolant_temperature):
     float or numpy.ndarray
         ``Q_cool = U A (T_p - T_c)``. [W] Zero or negative when the coolant is not colder.
     """
-    return _scalar_or_array(
-        _positive("ua", ua) * (_positive("process_temperature", process_temperature) - _positive("coolant_temperature", coolant_temperature))
-    )
+    return scalar_or_array(require_positive(ua, "ua") * (require_positive(process_temperature, "process_temperature") - require_positive(coolant_temperature, "coolant_temperature")))
 
 
 def required_coolant_temperature(mass, ua, process_temperature, peak_heat_release_rate):
@@ -604,10 +586,10 @@ def required_coolant_temperature(mass, ua, process_temperature, peak_heat_releas
     ModelDomainError
         If the result is not above 0 K (the cooling is far too small for the release).
     """
-    m = float(_positive("mass", mass))
-    ua_ = float(_positive("ua", ua))
-    t_p = float(_positive("process_temperature", process_temperature))
-    q_p = float(_positive("peak_heat_release_rate", peak_heat_release_rate))
+    m = float(require_positive(mass, "mass"))
+    ua_ = float(require_positive(ua, "ua"))
+    t_p = float(require_positive(process_temperature, "process_temperature"))
+    q_p = float(require_positive(peak_heat_release_rate, "peak_heat_release_rate"))
     t_c = t_p - m * q_p / ua_
     if t_c <= 0.0:
         raise ModelDomainError(
@@ -640,11 +622,11 @@ def operating_point_stability(mass, ua, process_temperature, peak_heat_release_r
         ``dG/dT < U A`` (Semenov 1928; Williams 1985 app. B: an intersection is stable where the
         removal line is steeper than the generation curve).
     """
-    m = float(_positive("mass", mass))
-    ua_ = float(_positive("ua", ua))
-    t_p = float(_positive("process_temperature", process_temperature))
-    q_p = float(_positive("peak_heat_release_rate", peak_heat_release_rate))
-    e = float(_positive("activation_energy", activation_energy))
+    m = float(require_positive(mass, "mass"))
+    ua_ = float(require_positive(ua, "ua"))
+    t_p = float(require_positive(process_temperature, "process_temperature"))
+    q_p = float(require_positive(peak_heat_release_rate, "peak_heat_release_rate"))
+    e = float(require_positive(activation_energy, "activation_energy"))
     slope = m * q_p * e / (GAS_CONSTANT * t_p**2)
     ratio = slope / ua_
     return OperatingPointStability(slope, ua_, ratio, bool(ratio < 1.0))
@@ -713,10 +695,10 @@ def dosing_controlled_peak_rate(adiabatic_rise, specific_heat, final_mass, dosin
     upper bound of the instantaneous release.
     """
     return float(
-        _positive("final_mass", final_mass)
-        * _positive("specific_heat", specific_heat)
-        * _positive("adiabatic_rise", adiabatic_rise)
-        / _positive("dosing_time", dosing_time)
+        require_positive(final_mass, "final_mass")
+        * require_positive(specific_heat, "specific_heat")
+        * require_positive(adiabatic_rise, "adiabatic_rise")
+        / require_positive(dosing_time, "dosing_time")
     )
 
 
@@ -740,7 +722,7 @@ def shortest_coolable_dosing_time(total_heat, cooling_capacity):
     ModelDomainError
         If the cooling capacity is not positive (no dosing time is coolable).
     """
-    return float(_positive("total_heat", total_heat) / _positive("cooling_capacity", cooling_capacity))
+    return float(require_positive(total_heat, "total_heat") / require_positive(cooling_capacity, "cooling_capacity"))
 
 
 # Sweeps -----------------------------------------------------------------------------------------
@@ -771,7 +753,7 @@ def coolant_temperature_sweep(mass, ua, coolant_temperatures, reference_rate, re
         value that does not exist with NaN (no stable point, no T_NR, no tangency) and sets
         ``subcritical`` False there; the scalar functions raise or return None instead.
     """
-    t_c = np.atleast_1d(_positive("coolant_temperatures", coolant_temperatures)).astype(float)
+    t_c = np.atleast_1d(require_positive(coolant_temperatures, "coolant_temperatures")).astype(float)
     critical = critical_point(mass, ua, reference_rate, reference_temperature, activation_energy)
     e = float(activation_energy)
     psi = np.atleast_1d(semenov_number(mass, ua, t_c, reference_rate, reference_temperature, e))

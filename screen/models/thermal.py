@@ -7,29 +7,12 @@ Chemical Reactivity Evaluation and Application to Process Design, AIChE 1995.
 
 from __future__ import annotations
 
-import numpy as np
-
-from screen.errors import ModelDomainError
-
-
-def _checked(name, value, low=None, high=None, low_open=False, unit=""):
-    """Array of ``value`` after a domain check (raises ModelDomainError, never returns NaN)."""
-    array = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(array)
-    if low is not None:
-        bad |= (array <= low) if low_open else (array < low)
-    if high is not None:
-        bad |= array > high
-    if np.any(bad):
-        first = array[bad].flat[0] if array.ndim else float(array)
-        bounds = []
-        if low is not None:
-            bounds.append(("> " if low_open else ">= ") + f"{low:g}")
-        if high is not None:
-            bounds.append(f"<= {high:g}")
-        raise ModelDomainError(f"{name} must be finite and {' and '.join(bounds) or 'finite'}"
-                               f"{' ' + unit if unit else ''}, got {first!r}")
-    return array
+from screen.models.domain import (
+    require_finite,
+    require_fraction,
+    require_non_negative,
+    require_positive,
+)
 
 
 def adiabatic_temperature_rise(specific_energy, specific_heat):
@@ -52,8 +35,8 @@ def adiabatic_temperature_rise(specific_energy, specific_heat):
     >>> round(adiabatic_temperature_rise(180e3, 1800.0), 6)
     100.0
     """
-    energy = _checked("specific_energy", specific_energy, unit="J/kg")
-    heat = _checked("specific_heat", specific_heat, 0.0, low_open=True, unit="J/(kg K)")
+    energy = require_finite(specific_energy, "specific_energy", "J/kg")
+    heat = require_positive(specific_heat, "specific_heat", "J/(kg K)")
     return energy / heat
 
 
@@ -74,9 +57,9 @@ def specific_energy_from_molar(molar_enthalpy, limiting_amount, mass):
     float
         [J/kg]
     """
-    enthalpy = _checked("molar_enthalpy", molar_enthalpy, unit="J/mol")
-    amount = _checked("limiting_amount", limiting_amount, 0.0, unit="mol")
-    final_mass = _checked("mass", mass, 0.0, low_open=True, unit="kg")
+    enthalpy = require_finite(molar_enthalpy, "molar_enthalpy", "J/mol")
+    amount = require_non_negative(limiting_amount, "limiting_amount", "mol")
+    final_mass = require_positive(mass, "mass", "kg")
     return -enthalpy * amount / final_mass
 
 
@@ -109,9 +92,8 @@ def maximum_temperature_synthesis_reaction(process_temperature, adiabatic_rise, 
     >>> float(maximum_temperature_synthesis_reaction(350.0, 100.0, 0.3, 0.75))
     390.0
     """
-    temperature = _checked("process_temperature", process_temperature, 0.0, low_open=True,
-                           unit="K")
-    rise = _checked("adiabatic_rise", adiabatic_rise, 0.0, unit="K")
-    fraction = _checked("accumulation", accumulation, 0.0, 1.0)
-    ratio = _checked("mass_ratio", mass_ratio, 0.0, 1.0, low_open=True)
+    temperature = require_positive(process_temperature, "process_temperature", "K")
+    rise = require_non_negative(adiabatic_rise, "adiabatic_rise", "K")
+    fraction = require_fraction(accumulation, "accumulation")
+    ratio = require_positive(require_fraction(mass_ratio, "mass_ratio"), "mass_ratio")
     return temperature + fraction * rise / ratio

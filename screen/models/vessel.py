@@ -54,6 +54,7 @@ import math
 import numpy as np
 
 from screen.errors import ModelDomainError, SolverError
+from screen.models.domain import require_positive, scalar_or_array
 
 __all__ = [
     "BOTTOM_SHAPES",
@@ -135,19 +136,8 @@ def _check_bottom(bottom: str) -> str:
     return bottom
 
 
-def _positive(name: str, value, allow_zero: bool = False) -> np.ndarray:
-    """Return ``value`` as a float array after checking it is finite and positive."""
-    array = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(array) | ((array < 0.0) if allow_zero else (array <= 0.0))
-    if np.any(bad):
-        shown = array[bad].flat[0] if array.ndim else float(array)
-        accepted = "a finite value >= 0" if allow_zero else "a finite value > 0"
-        raise ModelDomainError(f"{name} = {shown!r} is out of range; accepted: {accepted}", key=name)
-    return array
 
 
-def _scalar_or_array(array: np.ndarray):
-    return float(array) if array.ndim == 0 else array
 
 
 # Dimensionless (unit-diameter) shape functions ------------------------------------------------
@@ -251,8 +241,8 @@ def head_volume(diameter, bottom: str):
     R = D, r = 0.06 D (the "0.0809 D^3" of the flanged-and-dished head, from memory). Flat: 0.
     """
     _check_bottom(bottom)
-    d = _positive("diameter", diameter)
-    return _scalar_or_array(_unit_head_volume(bottom) * d**3)
+    d = require_positive(diameter, "diameter")
+    return scalar_or_array(_unit_head_volume(bottom) * d**3)
 
 
 def head_depth(diameter, bottom: str):
@@ -273,8 +263,8 @@ def head_depth(diameter, bottom: str):
         R = 0.8 D, r = 0.154 D); flat: 0.
     """
     _check_bottom(bottom)
-    d = _positive("diameter", diameter)
-    return _scalar_or_array(_unit_depth(bottom) * d)
+    d = require_positive(diameter, "diameter")
+    return scalar_or_array(_unit_depth(bottom) * d)
 
 
 def head_inner_area(diameter, bottom: str):
@@ -296,8 +286,8 @@ def head_inner_area(diameter, bottom: str):
         ``pi D^2/4``.
     """
     _check_bottom(bottom)
-    d = _positive("diameter", diameter)
-    return _scalar_or_array(_unit_head_area(bottom) * d**2)
+    d = require_positive(diameter, "diameter")
+    return scalar_or_array(_unit_head_area(bottom) * d**2)
 
 
 def filled_volume(liquid_level, diameter, bottom: str):
@@ -318,11 +308,11 @@ def filled_volume(liquid_level, diameter, bottom: str):
         ``V(z) = pi * integral_0^z r(s)^2 ds`` (closed forms in the module docstring). [m^3]
     """
     _check_bottom(bottom)
-    level = _positive("liquid_level", liquid_level, allow_zero=True)
-    d = _positive("diameter", diameter)
+    level = require_positive(liquid_level, "liquid_level", allow_zero=True)
+    d = require_positive(diameter, "diameter")
     level, d = np.broadcast_arrays(level, d)
     out = np.vectorize(lambda z, dd: _unit_volume_below(z / dd, bottom) * dd**3, otypes=[float])(level, d)
-    return _scalar_or_array(np.asarray(out))
+    return scalar_or_array(np.asarray(out))
 
 
 def liquid_height(fill_volume, diameter, bottom: str):
@@ -350,11 +340,11 @@ def liquid_height(fill_volume, diameter, bottom: str):
         If the fill volume or the diameter is not positive.
     """
     _check_bottom(bottom)
-    volume = _positive("fill_volume", fill_volume)
-    d = _positive("diameter", diameter)
+    volume = require_positive(fill_volume, "fill_volume")
+    d = require_positive(diameter, "diameter")
     volume, d = np.broadcast_arrays(volume, d)
     out = np.vectorize(lambda v, dd: _unit_level_for_volume(v / dd**3, bottom) * dd, otypes=[float])(volume, d)
-    return _scalar_or_array(np.asarray(out))
+    return scalar_or_array(np.asarray(out))
 
 
 def fill_fraction(fill_volume, vessel_volume):
@@ -377,15 +367,15 @@ def fill_fraction(fill_volume, vessel_volume):
     ModelDomainError
         If a volume is not positive or the fill exceeds the vessel volume.
     """
-    volume = _positive("fill_volume", fill_volume)
-    total = _positive("vessel_volume", vessel_volume)
+    volume = require_positive(fill_volume, "fill_volume")
+    total = require_positive(vessel_volume, "vessel_volume")
     fraction = volume / total
     if np.any(fraction > 1.0):
         raise ModelDomainError(
             f"fill volume exceeds the vessel volume (fill fraction {np.max(fraction):.4g}); accepted: <= 1",
             key="fill_volume",
         )
-    return _scalar_or_array(fraction)
+    return scalar_or_array(fraction)
 
 
 def wetted_area(fill_volume, diameter, bottom: str, jacket_height=None, vessel_volume=None):
@@ -422,11 +412,11 @@ def wetted_area(fill_volume, diameter, bottom: str, jacket_height=None, vessel_v
         fill_fraction(fill_volume, vessel_volume)
     level = np.asarray(liquid_height(fill_volume, diameter, bottom), dtype=float)
     if jacket_height is not None:
-        level = np.minimum(level, _positive("jacket_height", jacket_height))
-    d = _positive("diameter", diameter)
+        level = np.minimum(level, require_positive(jacket_height, "jacket_height"))
+    d = require_positive(diameter, "diameter")
     level, d = np.broadcast_arrays(level, d)
     out = np.vectorize(lambda z, dd: _unit_area_below(z / dd, bottom) * dd**2, otypes=[float])(level, d)
-    return _scalar_or_array(np.asarray(out))
+    return scalar_or_array(np.asarray(out))
 
 
 def cylinder_height_for_volume(volume, diameter, bottom: str):
@@ -452,12 +442,12 @@ def cylinder_height_for_volume(volume, diameter, bottom: str):
         For non-positive sizes or a volume smaller than the head alone.
     """
     _check_bottom(bottom)
-    v = _positive("volume", volume)
-    d = _positive("diameter", diameter)
+    v = require_positive(volume, "volume")
+    d = require_positive(diameter, "diameter")
     remaining = v - _unit_head_volume(bottom) * d**3
     if np.any(remaining < 0.0):
         raise ModelDomainError("volume is smaller than the bottom head alone; accepted: >= head volume", key="volume")
-    return _scalar_or_array(remaining / (math.pi / 4.0 * d**2))
+    return scalar_or_array(remaining / (math.pi / 4.0 * d**2))
 
 
 def similar_vessel(volume, aspect_ratio, bottom: str):
@@ -483,6 +473,6 @@ def similar_vessel(volume, aspect_ratio, bottom: str):
     V^(-1/3) at a fixed fill fraction (derived; the basis of the cooling-capacity loss on scale-up).
     """
     _check_bottom(bottom)
-    v = _positive("volume", volume)
-    ratio = _positive("aspect_ratio", aspect_ratio)
-    return _scalar_or_array((v / (math.pi / 4.0 * ratio + _unit_head_volume(bottom))) ** (1.0 / 3.0))
+    v = require_positive(volume, "volume")
+    ratio = require_positive(aspect_ratio, "aspect_ratio")
+    return scalar_or_array((v / (math.pi / 4.0 * ratio + _unit_head_volume(bottom))) ** (1.0 / 3.0))

@@ -88,34 +88,17 @@ def make_variant(case, label, changes=None, vessel_changes=None, drop=()):
         The variant. Its ``[scenarios]`` keeps only ``evaporation_check`` and its ``extras``
         carry ``scenario_variant``, so it never runs scenarios itself.
     """
-    from screen.io.case import SCHEMA, Section, _check_consistency
+    from screen.io.case import case_with_changes
 
-    sections = dict(case.sections)
-    for name, values in (changes or {}).items():
-        current = sections[name].as_dict() if name in sections else {}
-        for key, value in values.items():
-            if value is None:
-                current.pop(key, None)
-            else:
-                current[key] = value
-        sections[name] = Section(name, current, SCHEMA[name])
-    for name in drop:
-        sections.pop(name, None)
-    scenarios = sections.pop("scenarios", None)
+    changes = dict(changes or {})
+    scenarios = case.sections.get("scenarios")
+    drop = tuple(drop) + ("scenarios",)
     if scenarios is not None and scenarios.evaporation_check:
-        sections["scenarios"] = Section("scenarios", {"evaporation_check": True},
-                                        SCHEMA["scenarios"])
-    vessels = list(case.vessels)
-    if vessel_changes is not None:
-        vessels = [Section("vessel", vessel_changes(v.as_dict()), SCHEMA["vessel"])
-                   for v in vessels]
-    warnings: list[str] = []
-    _check_consistency(sections, vessels, case.path, warnings)
-    extras = dict(case.extras)
-    extras["scenario_variant"] = label
-    return dataclasses.replace(case, sections=sections, vessels=tuple(vessels),
-                               warnings=tuple(warnings), extras=extras,
-                               overrides=case.overrides + (f"scenario: {label}",))
+        # The variant keeps only the evaporation check of [scenarios]: it never runs scenarios.
+        drop = tuple(d for d in drop if d != "scenarios")
+        changes["scenarios"] = {k: None for k in scenarios.as_dict() if k != "evaporation_check"}
+    return case_with_changes(case, changes, vessel_changes, drop, f"scenario: {label}",
+                             extras={"scenario_variant": label})
 
 
 def _accumulation(case):

@@ -8,7 +8,6 @@ by bisection on the input to a relative tolerance of 1e-9 of the range.
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -19,8 +18,7 @@ from screen.errors import CaseError, ScreenError
 from screen.io.case import (
     SCHEMA,
     Case,
-    Section,
-    _check_consistency,
+    case_with_changes,
     check_temperature_range,
     parse_field_quantity,
 )
@@ -115,23 +113,12 @@ def _split_key(key: str):
 
 
 def case_with_value(case: Case, key: str, value: float) -> Case:
-    """A copy of ``case`` with one value replaced (SI), cross-checked again."""
+    """A copy of ``case`` with one value replaced (SI), range-checked and cross-checked again.
+
+    ``key`` is ``SECTION.KEY``, ``vessel.KEY`` (every vessel) or ``vessel.N.KEY`` (1-based).
+    """
     parts = key.split(".")
-    section = parts[0]
-    sections = dict(case.sections)
-    vessels = list(case.vessels)
-    if section == "vessel":
-        name = parts[-1]
-        indices = range(len(vessels)) if len(parts) == 2 else [int(parts[1]) - 1]
-        for i in indices:
-            values = vessels[i].as_dict()
-            values[name] = value
-            vessels[i] = Section("vessel", values, SCHEMA["vessel"])
-    else:
-        name = parts[1]
-        values = sections[section].as_dict() if section in sections else {}
-        values[name] = value
-        sections[section] = Section(section, values, SCHEMA[section])
+    section, name = parts[0], parts[-1]
     spec = SCHEMA[section][name]
     if not math.isfinite(value):
         raise CaseError(f"value {value!r} is not a finite number", key, case.path)
@@ -145,11 +132,12 @@ def case_with_value(case: Case, key: str, value: float) -> Case:
                                                               and value == spec.maximum)):
         raise CaseError(f"value {value:g} above the allowed maximum {spec.maximum:g}", key,
                         case.path)
-    warnings: list[str] = []
-    _check_consistency(sections, vessels, case.path, warnings)
-    return dataclasses.replace(case, sections=sections, vessels=tuple(vessels),
-                               warnings=tuple(warnings),
-                               overrides=case.overrides + (f"{key}={value!r} (SI)",))
+    label = f"{key}={value!r} (SI)"
+    if section == "vessel":
+        indices = range(len(case.vessels)) if len(parts) == 2 else [int(parts[1]) - 1]
+        return case_with_changes(case, vessel_changes={i: {name: value} for i in indices},
+                                 label=label)
+    return case_with_changes(case, {section: {name: value}}, label=label)
 
 
 def evaluate_point(case: Case, assignments) -> dict:
