@@ -363,7 +363,9 @@ def test_contradictions_are_case_errors(changes, key, fragment):
 
 
 def test_summary_lines_fit_the_terminal():
-    _, result = screened(raw_case(**{"solvent.amount": "20 kg"}))
+    # The terminal lines are written where they are shown: a check, i.e. with curves.
+    result = screen_case(build_case(raw_case(**{"solvent.amount": "20 kg"}), path="test.toml"),
+                         curves=True)
     lines = result.results["barrier"]["summary_lines"]
     assert lines[0].startswith("Evaporative-cooling barrier")
     assert all(len(line) <= 78 for line in lines)

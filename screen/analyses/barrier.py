@@ -588,7 +588,8 @@ def add_barrier(case, result, curves: bool = False) -> None:
         "decomposition_heat_counted_in_inventory": context["decomposition_counted"],
         "vessels": entries,
     }
-    block["summary_lines"] = _summary_lines(heading, block)
+    # Terminal text only where it is shown (a check); sweeps and samples read the figures.
+    block["summary_lines"] = _summary_lines(heading, block) if curves else []
     r["barrier"] = block
     result.methods["barrier"] = METHOD_TEXT
     if solvent is None:

@@ -22,6 +22,7 @@ from screen.analyses.inputs import (
     characteristic_temperatures,
     decomposition_kinetics,
     synthesis_specific_energy,
+    tmrad_at,
 )
 from screen.analyses.vessels import vessel_results
 from screen.cautions import CAUTIONS
@@ -182,8 +183,8 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     _plausibility_warnings(case, rise_syn, rise_dec, warnings)
 
     try:
-        tmrad_tp = float(dm.tmrad(kinetics, t_p, cp))
-        tmrad_mtsr = float(dm.tmrad(kinetics, mtsr, cp))
+        tmrad_tp = tmrad_at(kinetics, t_p, cp)
+        tmrad_mtsr = tmrad_at(kinetics, mtsr, cp)
         tmrad_mtsr_zero = float(dm.tmrad_townsend_tou_for(kinetics, mtsr, cp))
         td24, td8 = characteristic_temperatures(kinetics, cp)
     except ScreenError as exc:

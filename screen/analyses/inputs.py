@@ -58,11 +58,7 @@ def _characteristic_temperatures(key, cp):
 def characteristic_temperatures(kinetics, cp) -> tuple[float, float]:
     """(TD24, TD8) [K] of scalar kinetics, cached: sweeps of vessel or process inputs do not
     change them, and each costs a root search."""
-    key = (kinetics.model, float(kinetics.energy), float(kinetics.activation_energy),
-           float(kinetics.pre_exponential_factor), float(kinetics.order),
-           float(kinetics.autocatalytic_order), float(kinetics.initial_conversion),
-           None if kinetics.log_pre_exponential_factor is None
-           else float(kinetics.log_pre_exponential_factor))
+    key = _kinetics_key(kinetics)
     return _characteristic_temperatures(key, float(cp))
 
 
@@ -73,3 +69,71 @@ def synthesis_specific_energy(case) -> float:
         return float(syn.energy)
     return float(thermal.specific_energy_from_molar(syn.molar_enthalpy, syn.limiting_amount,
                                                     case.sections["mass"].amount))
+
+
+def _memoised_per_section(section_name: str, size: int = 64):
+    """Memoise a builder ``f(case)`` on the values of one case section: sweeps, limits and
+    scenarios rebuild the same model object for every point otherwise. The objects are frozen,
+    so sharing them between results is safe."""
+
+    def decorate(build):
+        cache: dict = {}
+
+        @functools.wraps(build)
+        def cached(case):
+            section = case.sections.get(section_name)
+            try:
+                key = (case.sections["mass"].specific_heat,
+                       tuple(sorted(section.as_dict().items())) if section is not None else None)
+                hash(key)
+            except TypeError:  # an unhashable value: build without the cache
+                return build(case)
+            if key not in cache:
+                if len(cache) >= size:
+                    cache.pop(next(iter(cache)))
+                cache[key] = build(case)
+            return cache[key]
+
+        cached.cache_clear = cache.clear
+        return cached
+
+    return decorate
+
+
+decomposition_kinetics = _memoised_per_section("decomposition")(decomposition_kinetics)
+
+
+@functools.lru_cache(maxsize=1024)
+def _tmrad_cached(key, temperature, cp):
+    from screen.models import decomposition as dm
+
+    return float(dm.tmrad(dm.DecompositionKinetics(*key), temperature, cp))
+
+
+def tmrad_at(kinetics, temperature, cp) -> float:
+    """TMRad [s] of scalar kinetics at one start temperature [K], cached (the engine's TMRad at
+    T_p and MTSR stay the same over a sweep of a vessel input).
+
+    Parameters
+    ----------
+    kinetics : screen.models.decomposition.DecompositionKinetics
+        Scalar decomposition kinetics.
+    temperature : float
+        Start temperature. [K]
+    cp : float
+        Specific heat capacity. [J/(kg K)]
+
+    Returns
+    -------
+    float
+        TMRad (phi = 1). [s]
+    """
+    return _tmrad_cached(_kinetics_key(kinetics), float(temperature), float(cp))
+
+
+def _kinetics_key(kinetics) -> tuple:
+    return (kinetics.model, float(kinetics.energy), float(kinetics.activation_energy),
+            float(kinetics.pre_exponential_factor), float(kinetics.order),
+            float(kinetics.autocatalytic_order), float(kinetics.initial_conversion),
+            None if kinetics.log_pre_exponential_factor is None
+            else float(kinetics.log_pre_exponential_factor))

@@ -128,8 +128,8 @@ def add_pressure(case, result, curves: bool = True) -> None:
     """Vapour pressures and closed-vessel pressures against the relief set pressure (engine hook).
 
     Adds ``result.results["pressure"]`` (pressures in bar absolute, temperatures in degC),
-    warnings and the method text. ``curves`` is accepted for the hook interface; the check is
-    cheap and the same either way.
+    warnings and the method text. The figures are the same with or without ``curves``; without
+    (sweeps, samples) the terminal lines are skipped.
 
     Parameters
     ----------
@@ -139,7 +139,7 @@ def add_pressure(case, result, curves: bool = True) -> None:
         Result of the core screening (and of the simulation, which runs first), extended in
         place.
     curves : bool
-        Unused (no curves).
+        False in sweeps and Monte Carlo samples: no terminal lines.
 
     Raises
     ------
@@ -149,7 +149,7 @@ def add_pressure(case, result, curves: bool = True) -> None:
     from screen.models import solvents
     from screen.models.pressure import decomposition_gas_moles, relief_verdict
 
-    del curves
+    show_text = curves  # terminal lines only where they are shown (a check)
     path = case.path
     solvent_section = case.sections["solvent"]
     temps = result.curves["temperatures_K"]
@@ -291,7 +291,7 @@ def add_pressure(case, result, curves: bool = True) -> None:
     else:
         warnings.append("[solvent] has no name: vapour pressures are not assessed and any "
                         "closed-vessel pressure is a lower bound.")
-    results["summary_lines"] = _summary_lines(results)
+    results["summary_lines"] = _summary_lines(results) if show_text else []
     result.results["pressure"] = results
 
 

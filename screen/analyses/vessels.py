@@ -9,6 +9,7 @@ fresh-mass rate (the screening convention). Nothing here reads files or prints.
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -22,9 +23,20 @@ LOW_FILL_FRACTION = 0.15
 
 
 
+@functools.lru_cache(maxsize=256)
+def _wetted_geometry(fill_volume, diameter, bottom, jacket_height, vessel_volume):
+    """(wetted area [m^2], liquid level [m], head depth [m]) of a fill, cached: sweeps of a
+    coolant or U leave the geometry unchanged, and the level needs a root search."""
+    from screen.models import vessel as geometry
+
+    area = float(geometry.wetted_area(fill_volume, diameter, bottom, jacket_height=jacket_height,
+                                      vessel_volume=vessel_volume))
+    level = float(geometry.liquid_height(fill_volume, diameter, bottom))
+    return area, level, float(geometry.head_depth(diameter, bottom))
+
+
 def vessel_geometry(case, vessel, prefix):
     """Fill volume [m^3], wetted area [m^2], fill fraction, warnings for one vessel."""
-    from screen.models import vessel as geometry
 
     warnings = []
     mass = vessel.batch_mass or case.sections["mass"].amount
@@ -45,13 +57,10 @@ def vessel_geometry(case, vessel, prefix):
         area = float(vessel.heat_transfer_area)
     else:
         try:
-            area = float(geometry.wetted_area(fill_volume, vessel.diameter, vessel.bottom,
-                                              jacket_height=vessel.jacket_height,
-                                              vessel_volume=vessel.volume))
-            level = float(geometry.liquid_height(fill_volume, vessel.diameter, vessel.bottom))
+            area, level, depth = _wetted_geometry(fill_volume, vessel.diameter, vessel.bottom,
+                                                  vessel.jacket_height, vessel.volume)
         except ScreenError as exc:
             raise CaseError(exc.message, prefix, case.path) from None
-        depth = float(geometry.head_depth(vessel.diameter, vessel.bottom))
         if vessel.jacket_height is not None and level > vessel.jacket_height:
             warnings.append(f"{vessel.name}: liquid level {level:.2f} m is above the jacket top "
                             f"({vessel.jacket_height:.2f} m); only the jacketed wall is counted.")

@@ -16,6 +16,7 @@ CAS numbers are accepted with their check digit verified. Ambiguous names ("xyle
 from __future__ import annotations
 
 import csv
+import functools
 import math
 import re
 from dataclasses import dataclass
@@ -330,6 +331,7 @@ def vapour_pressure(solvent: Solvent, temperature):
     return float(pressure) if pressure.ndim == 0 else pressure
 
 
+@functools.lru_cache(maxsize=256)
 def boiling_temperature(solvent: Solvent, pressure: float) -> float:
     """Boiling temperature of the pure solvent at a given pressure.
 
