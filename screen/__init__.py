@@ -1,25 +1,63 @@
 """runaway-screen: thermal-runaway screening of exothermic reactions.
 
-Public API (imports are lazy so that ``runaway-screen --help`` stays instant):
+Public API (``docs/python-api.md`` walks through it). Importing :mod:`screen` is light: numpy,
+scipy, pandas and the engine are imported on first use, so that ``runaway-screen --help`` and
+``import screen`` stay instant.
 
-- :func:`load_case` -- read and validate a TOML case file into SI quantities.
-- :func:`screen_case` -- run the screening engine on a loaded case.
+- :func:`load_case` -- read and validate a TOML case file (optional what-if overrides).
+- :func:`screen_case` -- screen a case; the result has ``to_frame()``, ``vessels_frame()``,
+  ``to_json_dict()``, ``figure(name)`` and a notebook display.
+- :func:`sweep`, :func:`compare`, :func:`screen_portfolio` -- DataFrames.
+- :func:`uncertainty` -- Monte Carlo propagation; class probabilities and percentiles as frames.
+
+Every result carries the cautions: a screening aid; results depend on input data quality; a
+qualified process-safety review, local codes and regulations, and licensed practice decide.
 """
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "load_case", "screen_case"]
+__all__ = ["__version__", "compare", "load_case", "screen_case", "screen_portfolio", "sweep",
+           "uncertainty"]
 
 
 def load_case(path, overrides=None):
-    """Load and validate a case file; see :func:`screen.io.case.load_case`."""
-    from screen.io.case import load_case as _load
+    """Load and validate a case file; see :func:`screen.api.load_case`."""
+    from screen import api
 
-    return _load(path, overrides=overrides)
+    return api.load_case(path, overrides)
 
 
-def screen_case(case):
-    """Screen a loaded case; see :func:`screen.analyses.engine.screen_case`."""
-    from screen.runs.screening import screen_case as _screen
+def screen_case(case, overrides=None):
+    """Screen a case (or a case file); see :func:`screen.api.screen_case`."""
+    from screen import api
 
-    return _screen(case)
+    return api.screen_case(case, overrides)
+
+
+def sweep(case, vary, steps=21, overrides=None):
+    """Rerun a case over one or two inputs (DataFrame); see :func:`screen.api.sweep`."""
+    from screen import api
+
+    return api.sweep(case, vary, steps=steps, overrides=overrides)
+
+
+def compare(a, b):
+    """What changed between two screenings (DataFrame); see :func:`screen.api.compare`."""
+    from screen import api
+
+    return api.compare(a, b)
+
+
+def screen_portfolio(paths, executor=None, workers=None, overrides=None, **options):
+    """Screen many case files (DataFrame); see :func:`screen.api.screen_portfolio`."""
+    from screen import api
+
+    return api.screen_portfolio(paths, executor=executor, workers=workers,
+                                overrides=overrides, **options)
+
+
+def uncertainty(case, samples=20_000, seed=20261201, overrides=None):
+    """Monte Carlo propagation; see :func:`screen.api.uncertainty`."""
+    from screen import api
+
+    return api.uncertainty(case, samples=samples, seed=seed, overrides=overrides)

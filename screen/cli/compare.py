@@ -6,6 +6,8 @@ import json
 
 import click
 
+from screen.io.result_json import MAX_RESULT_BYTES, read_result_json  # noqa: F401  (re-export)
+
 
 def _load_any(path, overrides=()):
     """A JSON-ready result dict from a case file (.toml) or an earlier ``--json`` output."""
@@ -14,63 +16,6 @@ def _load_any(path, overrides=()):
     if str(path).lower().endswith(".json"):
         return read_result_json(path)
     return run_check(path, overrides).to_json_dict(generated_at=timestamp())
-
-
-#: Largest earlier JSON result read [bytes]; a result of ``check --json`` is some 10-100 kB.
-MAX_RESULT_BYTES = 20_000_000
-
-
-def _reject_constant(name):
-    raise ValueError(f"{name} is not a JSON number")
-
-
-def read_result_json(path) -> dict:
-    """An earlier ``check --json`` output, checked for the members :mod:`screen.runs.compare` uses.
-
-    Raises
-    ------
-    DataFileError
-        Missing, unreadable, too large, not JSON (NaN and Infinity are not JSON), or without
-        ``case`` (a table), ``results`` (a table) and ``inputs`` (rows with ``key``, ``as_read``
-        and ``value_si``).
-    """
-    import os
-
-    from screen.errors import DataFileError
-
-    path = str(path)
-    hint = "give a case file or the output of 'runaway-screen check --json'"
-    if not os.path.exists(path):
-        raise DataFileError("file not found; give a case file or an earlier --json result",
-                            path=path)
-    if os.path.isdir(path):
-        raise DataFileError(f"is a directory; {hint}", path=path)
-    try:
-        with open(path, "rb") as handle:  # bounded: a device such as /dev/zero never ends
-            raw = handle.read(MAX_RESULT_BYTES + 1)
-    except OSError as exc:
-        raise DataFileError(f"cannot be read ({exc.strerror}); {hint}", path=path) from None
-    if len(raw) > MAX_RESULT_BYTES:
-        raise DataFileError(f"more than {MAX_RESULT_BYTES} bytes; {hint}", path=path)
-    try:
-        data = json.loads(raw.decode("utf-8"), parse_constant=_reject_constant)
-    except (UnicodeDecodeError, ValueError, RecursionError) as exc:
-        message = " ".join(str(exc).split())[:120]
-        raise DataFileError(f"not a readable JSON result ({message}); {hint}",
-                            path=path) from None
-    if not isinstance(data, dict) or not isinstance(data.get("results"), dict) or not \
-            isinstance(data.get("inputs"), list):
-        raise DataFileError(f"JSON without the 'results' and 'inputs' members; {hint}",
-                            path=path)
-    if not isinstance(data.get("case"), dict):
-        raise DataFileError(f"JSON without the 'case' member; {hint}", path=path)
-    for number, row in enumerate(data["inputs"], start=1):
-        if not (isinstance(row, dict) and isinstance(row.get("key"), str)
-                and "as_read" in row and "value_si" in row):
-            raise DataFileError(f"inputs[{number}] lacks key, as_read or value_si; {hint}",
-                                path=path)
-    data["case"].setdefault("path", path)
-    return data
 
 
 def _fmt(value):
@@ -198,9 +143,7 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
                 "case": {"title": case.title, "path": case.path, "sha256": case.sha256},
                 "vary": [{"key": v.key, "range": v.text, "unit_si": v.unit} for v in variations],
                 "rows": rows,
-                "flips": [{"key": f.key, "value_si": f.value, "unit_si": f.unit,
-                           "fixed": [list(x) for x in f.fixed],
-                           "changes": [list(c) for c in f.changed()]} for f in flips],
+                "flips": [f.as_record() for f in flips],
                 "cautions": list(CAUTIONS),
             }
             click.echo(json.dumps(payload, indent=2, ensure_ascii=False, default=str))
@@ -266,23 +209,9 @@ def _write_csv(rows, path, force, variations=()):
     import io
 
     from screen.io.fileio import write_atomic
-    from screen.runs.sweep import to_display
+    from screen.runs.sweep import display_rows
 
-    # Varied inputs are written in SI and in the display unit, both named with their unit.
-    renamed = []
-    for row in rows:
-        out = {}
-        for key, value in row.items():
-            variation = next((v for v in variations if v.key == key), None)
-            if variation is None:
-                out[key] = value
-                continue
-            shown, unit = to_display(value, variation.unit, variation.kind)
-            out[f"{key} [{variation.unit or '-'}]"] = value
-            if unit != variation.unit:
-                out[f"{key} [{unit}]"] = shown
-        renamed.append(out)
-    rows = renamed
+    rows = display_rows(rows, variations)
     keys: list[str] = []
     for row in rows:
         for key in row:

@@ -21,7 +21,7 @@ def load_earlier_result(path) -> dict:
 
     path = str(path)
     if path.lower().endswith(".json"):
-        from screen.cli.compare import read_result_json
+        from screen.io.result_json import read_result_json
 
         try:
             return read_result_json(path)  # bounded read, same checks as `compare`

@@ -20,7 +20,7 @@ from __future__ import annotations
 import math
 import re
 
-from screen.report import figures
+from screen.report import figure_data, figures
 from screen.report.layout import bullet, figure_block, paragraph, table
 from screen.report.style import (
     FONT_BOLD,
@@ -337,18 +337,10 @@ def simulation_block(block, curve, styles, counter):
 
 def simulation_figure(curve, styles, counter):
     """Normal-operation temperature and MTSR(t) over the run, when the simulation gives them."""
-    if not isinstance(curve, dict):
+    data = figure_data.simulation_from_curve(curve)
+    if data is None:
         return []
-    time = curve.get("time_s")
-    mtsr = curve.get("mtsr_K")
-    if time is None or mtsr is None or len(time) != len(mtsr) or len(time) < 2:
-        return []
-    temperature = curve.get("temperature_K")
-    series = [("MTSR if the cooling fails at this moment (feed stopped)", mtsr, "accent")]
-    if temperature is not None and len(temperature) == len(time):
-        series.insert(0, ("temperature in normal operation", temperature, "ink"))
-    drawing = figures.run_profile(time, series, levels_k={"MTT": curve.get("mtt_K")},
-                                  marker_time_s=curve.get("worst_failure_time_s"))
+    drawing = figures.draw(data)
     return [figure_block(
         drawing, next(counter), "Temperature and MTSR over the run.",
         "Simulated temperature of the mass in normal operation (solid) and the MTSR reached if "
@@ -862,28 +854,11 @@ def uncertainty_block(block, curve, results, styles, counter):
 def sensitivity_figure(curve, styles, counter):
     """Bar chart of the sensitivity ranking from ``curves["uncertainty"]``: ``names`` with
     ``values`` (and optionally ``values_tmrad``), or ``{"sensitivity": {input: value}}``."""
-    names = values = second = None
-    label = "sensitivity [-]"
-    if isinstance(curve, dict):
-        label = curve.get("label", label)
-        source = curve.get("sensitivity")
-        if isinstance(source, dict) and all(isinstance(v, (int, float))
-                                            for v in source.values()):
-            names, values = list(source), [float(v) for v in source.values()]
-        elif "names" in curve and "values" in curve:
-            names, values = list(curve["names"]), [float(v or 0.0) for v in curve["values"]]
-            if curve.get("values_tmrad") is not None and \
-                    len(curve["values_tmrad"]) == len(names):
-                second = [float(v or 0.0) for v in curve["values_tmrad"]]
-    elif isinstance(curve, (list, tuple)) and curve and all(len(item) == 2 for item in curve):
-        names, values = [n for n, _ in curve], [float(v) for _, v in curve]
-    if not names:
+    data = figure_data.sensitivity_from_curve(curve)
+    if data is None:
         return []
-    series = ("with the margin T_{D24} − MTSR", "with TMRad at MTSR") if second else None
-    if second:
-        label = "Spearman rank correlation [-]"
-    drawing = figures.sensitivity_bars(names, values, label, second_values=second,
-                                       series_labels=series)
+    second = data.notes["two_measures"]
+    drawing = figures.draw(data)
     if second:
         caption = ("Spearman rank correlation of each uncertain input with the onset margin "
                    "T<sub>D24</sub> − MTSR (grey bars) and with TMRad at MTSR (hatched bars), "

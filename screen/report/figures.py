@@ -50,6 +50,14 @@ def _finite(value):
 # --------------------------------------------------------------------------------------------
 
 
+def draw(data):
+    """The reportlab drawing of one figure's data (a :class:`screen.report.figure_data.FigureData`:
+    the drawing function named by ``data.drawing`` called with ``data.arguments``)."""
+    if data.drawing not in DRAWINGS:
+        raise ValueError(f"no drawing {data.drawing!r}")
+    return globals()[data.drawing](**data.arguments)  # looked up now: patchable in tests
+
+
 def temperature_scale(temperatures_k: dict, class_label=None):
     """The criticality picture: T_p, MTSR, MTT, TD24, TD8 and the final temperature in order.
 
@@ -518,3 +526,8 @@ def sensitivity_bars(names, values, value_label="sensitivity [-]", second_values
             width = add_text(drawing, x + 18.0, y, text, size=7.0, valign="middle")
             x += 18.0 + width + 18.0
     return drawing
+
+
+#: Names of the drawing functions (:attr:`screen.report.figure_data.FigureData.drawing`).
+DRAWINGS = ("temperature_scale", "tmrad_curve", "semenov_diagram", "temperature_course",
+            "run_profile", "sensitivity_bars")

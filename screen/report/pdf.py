@@ -21,7 +21,7 @@ from __future__ import annotations
 import os
 
 from screen.constants import ZERO_CELSIUS
-from screen.report import blocks, figures
+from screen.report import blocks, figure_data, figures
 from screen.report.layout import FigureCounter
 from screen.report.layout import bullet as _bullet
 from screen.report.layout import figure_block as _figure_block
@@ -399,98 +399,14 @@ def _warnings_block(result, styles):
 # Figures section
 
 
-def _simulated_courses(result):
-    """Courses after the worst cooling failure from ``curves["simulation"]``, or None.
-
-    Returns a list of (time after the failure [s], temperature [K], failure time [s] or None,
-    feed mode): the feed stopped first, then the feed continuing when the simulation gives it.
-    Only the arrays named for the course after the failure are used (never the normal run).
-    """
-    import numpy as np
-
-    simulation = result.curves.get("simulation") if isinstance(result.curves, dict) else None
-    if not isinstance(simulation, dict):
-        return None
-    courses = []
-    for time_key, temperature_key, failure_key, mode in (
-            ("time_after_failure_s", "failure_temperature_K", "worst_failure_time_s",
-             "feed stopped"),
-            ("time_after_failure_feed_continuing_s", "failure_temperature_feed_continuing_K",
-             "worst_failure_time_feed_continuing_s", "feed continuing")):
-        time, temperature = simulation.get(time_key), simulation.get(temperature_key)
-        if time is None or temperature is None:
-            continue
-        time = np.asarray(time, dtype=float)
-        temperature = np.asarray(temperature, dtype=float)
-        if time.shape != temperature.shape or time.size < 2:
-            continue
-        failure = simulation.get(failure_key)
-        courses.append((time, temperature, failure, mode))
-    if not courses or courses[0][3] != "feed stopped":
-        return None
-    return courses
-
-
-def _adiabatic_course(result):
-    """(time [s], temperature [K], time to maximum rate [s] or None) of the adiabatic
-    decomposition from MTSR (the screening course, without the simulation)."""
-    import numpy as np
-
-    from screen.models.decomposition import adiabatic_course
-
-    temperatures = result.curves["temperatures_K"]
-    course = adiabatic_course(result.curves["kinetics"], temperatures["MTSR"],
-                              result.curves["specific_heat"])
-    time = temperature = tmr = None
-    if isinstance(course, dict):
-        time = _first_array(course, ("time_s", "time"))
-        temperature = _first_array(course, ("temperature_K", "temperature"))
-        tmr = course.get("time_to_maximum_rate_s")
-    elif hasattr(course, "time") or hasattr(course, "time_s"):
-        time = getattr(course, "time_s", None)
-        if time is None:
-            time = getattr(course, "time")
-        temperature = getattr(course, "temperature_K", None)
-        if temperature is None:
-            temperature = getattr(course, "temperature")
-        tmr = getattr(course, "time_to_maximum_rate", None)
-        if tmr is None:
-            tmr = getattr(course, "time_to_maximum_rate_s", None)
-    else:
-        time, temperature = course[0], course[1]
-    time = np.asarray(time, dtype=float)
-    temperature = np.asarray(temperature, dtype=float)
-    if tmr is None and len(time) > 2:
-        rate = np.gradient(temperature, time)
-        finite = np.isfinite(rate)
-        if finite.any():
-            tmr = float(time[int(np.nanargmax(np.where(finite, rate, -np.inf)))])
-    return time, temperature, tmr
-
-
-def _first_array(mapping, names):
-    for name in names:
-        if name in mapping and mapping[name] is not None:
-            return mapping[name]
-    return None
-
-
 def _figures_section(result, styles, counter):
     from reportlab.platypus import Spacer
 
     results = result.results
-    temps = result.curves["temperatures_K"]
     story = [_p("Figures", styles["h1"])]
 
-    if results.get("criticality_class") is None:
-        label = "no criticality class: cannot conclude without decomposition kinetics"
-    else:
-        label = f"criticality class {results.get('criticality_class')}"
-        if results.get("verdict_status", "screened") != "screened":
-            label += " (crude estimate from the DSC onset)"
-    drawing = figures.temperature_scale(temps, label)
     story.append(_figure_block(
-        drawing, next(counter), "Criticality temperature scale.",
+        figures.draw(figure_data.criticality(result)), next(counter), "Criticality temperature scale.",
         "The temperatures of the key-figures table on one scale. Read the order of the levels: "
         "the solid arrow is the synthesis runaway after a cooling failure (T<sub>p</sub> to "
         "MTSR), the dashed arrow the decomposition that may follow (MTSR to the final "
@@ -498,20 +414,14 @@ def _figures_section(result, styles, counter):
         "T<sub>D24</sub> (dashed) sets the class; the pale band is TMRad between 24 h and 8 h, "
         "the hatched region TMRad below 8 h.", styles))
 
-    grid, tmr = result.curves["tmrad_curve"]
-    dec = result.case.sections.get("decomposition")
-    lowest = None
-    if dec is not None and results.get("decomposition_basis") == "kinetics":
-        lowest = dec.get("lowest_measured_temperature") or dec.get("reference_temperature")
-    points = [("T_{p}", temps.get("T_p"), results.get("tmrad_at_process_temperature_h")),
-              ("MTSR", temps.get("MTSR"), results.get("tmrad_at_mtsr_h"))]
-    drawing = figures.tmrad_curve(grid, tmr, temps, points, lowest)
-    basis = ("" if results.get("decomposition_basis") == "kinetics" else
-             " <b>The curve is a crude estimate from the DSC onset alone.</b>")
+    data = figure_data.tmrad(result)
+    basis = (" <b>The curve is a crude estimate from the DSC onset alone.</b>"
+             if data.notes["crude"] else "")
     extrapolated = (" The hatched region lies below the lowest temperature at which the "
-                    "kinetics were measured: there the curve is extrapolated." if lowest else "")
+                    "kinetics were measured: there the curve is extrapolated."
+                    if data.notes["extrapolated"] else "")
     story.append(_figure_block(
-        drawing, next(counter), "Time to maximum rate under adiabatic conditions.",
+        figures.draw(data), next(counter), "Time to maximum rate under adiabatic conditions.",
         "TMRad of the decomposition against the temperature at which the mass starts to heat "
         "up adiabatically (logarithmic axis). Read T<sub>D24</sub> and T<sub>D8</sub> where the "
         "curve crosses the 24 h (dashed) and 8 h (dotted) lines, and the time available at "
@@ -520,20 +430,19 @@ def _figures_section(result, styles, counter):
 
     from screen.errors import ScreenError
 
-    courses = _simulated_courses(result)
-    if courses is not None:
-        story.extend(_simulated_course_figure(result, temps, courses, styles, counter))
+    try:
+        data = figure_data.course(result)
+    except ScreenError as exc:
+        # Say so in place of the figure rather than lose the whole report.
+        story.append(_p(f"<b>Figure {next(counter)}. Temperature course after a cooling "
+                        f"failure: not available.</b> The adiabatic course could not be "
+                        f"computed ({prose(exc.one_line())}); the key figures above do not "
+                        f"depend on it.", styles["caption"]))
     else:
-        try:
-            time, temperature, time_max = _adiabatic_course(result)
-        except ScreenError as exc:
-            # Say so in place of the figure rather than lose the whole report.
-            story.append(_p(f"<b>Figure {next(counter)}. Temperature course after a cooling "
-                            f"failure: not available.</b> The adiabatic course could not be "
-                            f"computed ({prose(exc.one_line())}); the key figures above do not "
-                            f"depend on it.", styles["caption"]))
+        if data.notes["source"] == "simulation":
+            story.extend(_simulated_course_figure(data, styles, counter))
         else:
-            story.extend(_course_figure(temps, time, temperature, time_max, styles, counter))
+            story.extend(_course_figure(data, styles, counter))
     story.extend(_semenov_figures(result, styles, counter))
 
     vessels = results.get("vessels") or []
@@ -545,39 +454,26 @@ def _figures_section(result, styles, counter):
 
 
 #: Legend of the simulated course after the worst failure (the wording is relied on by tests).
-SIMULATED_COURSE_LABEL = "simulated course after failure at the worst time (feed stopped)"
-SIMULATED_CONTINUING_LABEL = "simulated course after failure at the worst time (feed continuing)"
+SIMULATED_COURSE_LABEL = figure_data.SIMULATED_COURSE_LABEL
+SIMULATED_CONTINUING_LABEL = figure_data.SIMULATED_CONTINUING_LABEL
 
 
-def _course_figure(temps, time, temperature, time_max, styles, counter):
+def _course_figure(data, styles, counter):
     """Figure 3 without a simulation: T_p -> MTSR at once, then the adiabatic decomposition."""
-    drawing = figures.temperature_course(
-        time, temperature, {"MTT": temps.get("MTT"), "TD24": temps.get("TD24")},
-        process_temperature_k=temps.get("T_p"), time_to_maximum_rate_s=time_max,
-        jump_at_start=True, label="adiabatic decomposition from MTSR")
     caption = ("Temperature of the mass after a cooling failure at the worst moment. The "
                "synthesis rise from T<sub>p</sub> to MTSR is <b>assumed instantaneous at "
                "t = 0</b> (the accumulated reactant reacts at once, the conservative "
                "screening assumption); from MTSR the decomposition heats the mass "
                "adiabatically (no heat losses, φ = 1). Read the time left before the "
                "runaway accelerates and the temperature it ends at.")
-    return [_figure_block(drawing, next(counter), "Temperature course after a cooling failure.",
-                          caption, styles)]
+    return [_figure_block(figures.draw(data), next(counter),
+                          "Temperature course after a cooling failure.", caption, styles)]
 
 
-def _simulated_course_figure(result, temps, courses, styles, counter):
+def _simulated_course_figure(data, styles, counter):
     """Figure 3 from the simulation: feed stopped (solid), feed continuing (dashed)."""
-    time, temperature, failure, _ = courses[0]
-    extra = []
-    continuing = None
-    for other_time, other_temperature, other_failure, mode in courses[1:]:
-        if mode == "feed continuing":
-            extra.append((other_time, other_temperature, SIMULATED_CONTINUING_LABEL))
-            continuing = other_failure
-    drawing = figures.temperature_course(
-        time, temperature, {"MTT": temps.get("MTT"), "TD24": temps.get("TD24")},
-        process_temperature_k=temps.get("T_p"), time_to_maximum_rate_s=None,
-        jump_at_start=False, label=SIMULATED_COURSE_LABEL, extra_courses=extra)
+    failure = data.notes["failure_time_s"]
+    continuing = data.notes["failure_time_feed_continuing_s"]
 
     def moment(seconds):
         if not isinstance(seconds, (int, float)):
@@ -589,23 +485,24 @@ def _simulated_course_figure(result, temps, courses, styles, counter):
     caption = (f"Temperature of the mass after a cooling failure, from the dynamic simulation of "
                f"the run (see the simulation block): the failure at the worst time "
                f"({moment(failure)}) with the feed stopped (solid)")
-    if extra:
+    if data.notes["feed_continuing"]:
         caption += (f", and at the worst time for a feed that keeps running "
                     f"({moment(continuing)}; dashed)")
     caption += (". The accumulated reactant reacts at the simulated rate, adiabatically from "
                 "the failure on (no heat losses, no evaporation, φ = 1). Read how long the mass "
                 "takes to reach the MTT and T<sub>D24</sub>, and how much worse a feed that is "
                 "not stopped makes it.")
-    return [_figure_block(drawing, next(counter), "Temperature course after a cooling failure.",
-                          caption, styles)]
+    return [_figure_block(figures.draw(data), next(counter),
+                          "Temperature course after a cooling failure.", caption, styles)]
 
 
 def _semenov_figures(result, styles, counter):
     story = []
 
     first_semenov = None
-    for curve in result.curves.get("vessels", []) or []:
-        drawing = figures.semenov_diagram(curve)
+    for data in figure_data.semenov(result):
+        curve = data.arguments["curve"]
+        drawing = figures.draw(data)
         number = next(counter)
         if first_semenov is not None:
             story.append(_figure_block(
@@ -741,7 +638,7 @@ def _figure_methods(result) -> dict[str, str]:
                                "temperatures; 8 h and 24 h lines give T<sub>D8</sub> and "
                                "T<sub>D24</sub>.",
     }
-    if _simulated_courses(result) is not None:
+    if figure_data.simulated_courses(result) is not None:
         methods["figure: temperature course"] = (
             "Continuation of the cooling-failure simulation from its state at the worst failure "
             "time: synthesis and decomposition kinetics integrated together, adiabatic "

@@ -109,8 +109,8 @@ def screen_file(path, overrides=(), pdf_path=None, force=False, generated_at=Non
     ----------
     path : str
         Case file.
-    overrides : sequence of str
-        ``KEY=VALUE`` what-if overrides applied to the case.
+    overrides : mapping or sequence of str
+        What-if overrides applied to the case (see :func:`screen.io.case.load_case`).
     pdf_path : str, optional
         Also write the PDF screening summary there.
     force : bool
@@ -218,8 +218,9 @@ def screen_portfolio(paths, workers=None, executor=None, overrides=(), pdf_dir=N
         Any executor with ``submit(function, *args)`` returning futures with ``result()``
         (:mod:`concurrent.futures` executors, a ``dask.distributed.Client``). It is used as
         given and not shut down. Default: a ProcessPoolExecutor with ``workers`` processes.
-    overrides : sequence of str
-        ``KEY=VALUE`` overrides applied to every case.
+    overrides : mapping or sequence of str
+        Overrides applied to every case: ``{"KEY": value}`` or ``KEY=VALUE`` strings (see
+        :func:`screen.io.case.load_case`).
     pdf_dir : str, optional
         Write a PDF per case into this existing directory (named after the case file).
     force : bool
@@ -249,7 +250,10 @@ def screen_portfolio(paths, workers=None, executor=None, overrides=(), pdf_dir=N
     from screen.errors import CaseError, OutputError
 
     files = collect_case_files(paths, recursive=recursive)
-    overrides = tuple(overrides or ())
+    from collections.abc import Mapping
+
+    # A mapping {"KEY": value} (Python) or "KEY=VALUE" strings (command line).
+    overrides = dict(overrides) if isinstance(overrides, Mapping) else tuple(overrides or ())
     if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int)
                                 or workers < 1):
         raise CaseError(f"got {workers!r} workers; give a positive integer", "--workers")

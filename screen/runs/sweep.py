@@ -193,6 +193,12 @@ class Flip:
         return [(n, self.before.get(n), self.after.get(n)) for n in names
                 if self.before.get(n) != self.after.get(n)]
 
+    def as_record(self) -> dict:
+        """The flip as in ``sweep --json``: key, value_si, unit_si, fixed, changes."""
+        return {"key": self.key, "value_si": self.value, "unit_si": self.unit,
+                "fixed": [list(x) for x in self.fixed],
+                "changes": [list(c) for c in self.changed()]}
+
 
 def _bracket_flip(case, key, low, high, fixed, rel_tol, max_iter):
     """Bisection: the narrowest (low, high, row_low, row_high) around the first verdict change."""
@@ -281,3 +287,30 @@ def to_display(value: float, unit: str, kind: str):
     if kind == "time":
         return value / SECONDS_PER_HOUR, "h"
     return value, unit
+
+
+def display_rows(rows, variations) -> list[dict]:
+    """Sweep rows with each varied input named with its unit: ``KEY [SI unit]`` and, where it
+    differs, ``KEY [display unit]`` (degC, h) next to it; other columns unchanged.
+
+    Parameters
+    ----------
+    rows : list of dict
+        :func:`run_sweep` rows (varied inputs in SI).
+    variations : sequence of Variation
+        The varied inputs.
+    """
+    renamed = []
+    for row in rows:
+        out = {}
+        for key, value in row.items():
+            variation = next((v for v in variations if v.key == key), None)
+            if variation is None:
+                out[key] = value
+                continue
+            shown, unit = to_display(value, variation.unit, variation.kind)
+            out[f"{key} [{variation.unit or '-'}]"] = value
+            if unit != variation.unit:
+                out[f"{key} [{unit}]"] = shown
+        renamed.append(out)
+    return renamed
