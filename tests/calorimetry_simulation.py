@@ -188,7 +188,7 @@ def heat_wait_search_run(*, activation_energy=110e3, pre_exponential_factor=None
     t_detect = t
 
     def settled(t, y):  # exotherm over: conversion complete
-        return 1.0 - y[1] - 1e-6
+        return 1.0 - y[1] - 1e-5
     settled.terminal = True
     t, y = run(t, y, 200 * 3600, 0.0, [settled], max_step=5.0)
     t, y = run(t, y, 600.0)

@@ -50,9 +50,23 @@ from screen.report.kinetics import (
               help="Write a [decomposition] case-file section (never overwrites without --force).")
 @click.option("--force", is_flag=True, help="Allow -o to replace an existing file.")
 @click.option("--png-dir", metavar="DIR", help="Write the figures as PNG files into DIR.")
-def kinetics_command(thermograms, peaks, sample_mass, heating_rate, exo_up, baseline,
+@click.option("--adiabatic", metavar="RUN.csv",
+              help="Adiabatic heat-wait-search run (time_s, temperature_degC, optional "
+                   "pressure_bar) instead of DSC data: phi-corrected onset, rise, TMRad and "
+                   "kinetics.")
+@click.option("--phi", type=float, default=None,
+              help="Thermal inertia of the adiabatic run (or give --sample-mass, "
+                   "--specific-heat, --cell-mass and --cell-specific-heat).")
+@click.option("--cell-mass", metavar="'9.5 g'", help="Mass of the adiabatic test cell.")
+@click.option("--cell-specific-heat", metavar="'0.52 J/(g K)'",
+              help="c'p of the adiabatic test cell.")
+@click.option("--rate-threshold", default="0.02 K/min", show_default=True,
+              help="Self-heat rate that marks the exotherm of an adiabatic run.")
+@click.pass_context
+def kinetics_command(ctx, thermograms, peaks, sample_mass, heating_rate, exo_up, baseline,
                      integration_range, model, onset, energy, detection_limit, specific_heat,
-                     confidence, as_json, output, force, png_dir):
+                     confidence, as_json, output, force, png_dir, adiabatic, phi, cell_mass,
+                     cell_specific_heat, rate_threshold):
     """Decomposition kinetics from DSC runs: Kissinger (ASTM E698), Friedman and
     Flynn-Wall-Ozawa activation energies, decomposition energy, a fitted model for
     extrapolation and TD24 estimates.
@@ -65,6 +79,16 @@ def kinetics_command(thermograms, peaks, sample_mass, heating_rate, exo_up, base
       runaway-screen kinetics --onset '185 degC' --energy '650 J/g'
     """
     from screen.cli.common import handle_errors
+
+    if adiabatic is not None:
+        given = {name: ctx.get_parameter_source(name).name != "DEFAULT"
+                 for name in ctx.params}
+        handle_errors(_run_adiabatic)(ctx.params, given)
+        return
+    for name in ("phi", "cell_mass", "cell_specific_heat", "rate_threshold"):
+        if ctx.get_parameter_source(name).name != "DEFAULT":
+            handle_errors(_reject)(f"--{name.replace('_', '-')}",
+                                   "applies to an adiabatic run only; give --adiabatic RUN.csv")
 
     @handle_errors
     def run():
@@ -110,3 +134,67 @@ def _run_kinetics(thermograms, peaks, sample_mass, heating_rate, exo_up, baselin
         for path in written:
             click.echo(f"figure written: {path}")
 
+
+def _reject(option, message):
+    from screen.errors import CaseError
+
+    raise CaseError(message, key=option)
+
+
+def _run_adiabatic(params, given):
+    """Body of ``kinetics --adiabatic`` (errors are reported by the caller)."""
+    from screen.analyses.adiabatic_run import analyse_adiabatic
+    from screen.cli.heat_flow import positive_quantity
+    from screen.errors import CaseError
+    from screen.report import adiabatic_run as present
+
+    for name in ("thermograms", "peaks", "heating_rate", "exo_up", "integration_range",
+                 "onset", "energy", "detection_limit", "confidence", "baseline", "model"):
+        if given.get(name):
+            option = "THERMOGRAM.csv" if name == "thermograms" else (
+                "--range" if name == "integration_range" else
+                "--exo-up/--exo-down" if name == "exo_up" else f"--{name.replace('_', '-')}")
+            raise CaseError("applies to DSC data, not to an adiabatic run; leave it out",
+                            key=option)
+    masses = params["sample_mass"]
+    if len(masses) > 1:
+        raise CaseError("give the sample mass of the adiabatic run once", key="--sample-mass")
+    sample_mass = positive_quantity(masses[0], "mass", "--sample-mass") if masses else None
+    cp = (positive_quantity(params["specific_heat"], "specific_heat", "--specific-heat")
+          if given.get("specific_heat") else None)
+    cell_mass = (positive_quantity(params["cell_mass"], "mass", "--cell-mass")
+                 if params["cell_mass"] is not None else None)
+    cell_cp = (positive_quantity(params["cell_specific_heat"], "specific_heat",
+                                 "--cell-specific-heat")
+               if params["cell_specific_heat"] is not None else None)
+    threshold_value = _rate(params["rate_threshold"])
+    output, force = params["output"], params["force"]
+    if output:
+        check_writable(output, force)
+    result = analyse_adiabatic(params["adiabatic"], phi=params["phi"], sample_mass=sample_mass,
+                               specific_heat=cp, cell_mass=cell_mass,
+                               cell_specific_heat=cell_cp, threshold=threshold_value)
+    text = present.decomposition_toml(result) if output else None
+    written = present.write_pngs(result, params["png_dir"]) if params["png_dir"] else []
+    if output:
+        write_atomic(output, text.encode("utf-8"), force=force)
+    if params["as_json"]:
+        payload = present.result_to_dict(result)
+        if output:
+            payload["output"] = str(output)
+        if written:
+            payload["figures"] = [str(p) for p in written]
+        click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
+    else:
+        click.echo(present.format_summary(result))
+        if output:
+            click.echo(f"\n[decomposition] section written to {output}")
+        for path in written:
+            click.echo(f"figure written: {path}")
+
+
+def _rate(text):
+    """Self-heat rate option ('0.02 K/min') in K/s."""
+    from screen.io.thermograms import parse_quantity
+
+    return parse_quantity(text, "heating_rate", "--rate-threshold")

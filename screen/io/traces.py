@@ -5,7 +5,7 @@ Columns are recognised by name and unit, in the snake_case form of the project
 ``temperature_degC``, ``pressure_bar``) or in the instrument styles the DSC reader accepts
 (``Time (min)``, ``Tr / °C``, ``Qr [W]``, ``Dosed mass (g)``). Header lines, ``#`` comments and
 the separators and decimal commas of the thermogram reader are accepted: the general parser of
-:mod:`screen.thermograms` is reused, with a vectorised fast path for plain comma-separated
+:mod:`screen.io.thermograms` is reused, with a vectorised fast path for plain comma-separated
 files (100,000 rows in well under a second).
 
 Every problem raises :class:`screen.errors.DataFileError` with one line naming the file, the line
@@ -14,6 +14,7 @@ and column, and the fix. Values are returned in SI: s, K, W, kg, Pa.
 
 from __future__ import annotations
 
+import hashlib
 import io
 from dataclasses import dataclass, field
 
@@ -21,7 +22,7 @@ import numpy as np
 
 from screen.constants import ZERO_CELSIUS
 from screen.errors import DataFileError
-from screen.thermograms import (_NUMBER, _TEMPERATURE_UNITS, _TIME_UNITS, TEMPERATURE_RANGE_K,
+from screen.io.thermograms import (_NUMBER, _TEMPERATURE_UNITS, _TIME_UNITS, TEMPERATURE_RANGE_K,
                                 _column, _decode, _read_table, _split, _temperature_problem,
                                 canonical_unit, split_column_name)
 
@@ -65,6 +66,8 @@ class Trace:
     lines : numpy.ndarray
         File line number of each row (for messages).
     notes : list of str
+    sha256 : str
+        SHA-256 of the file as read.
     """
 
     path: str
@@ -76,6 +79,7 @@ class Trace:
     columns: dict = field(default_factory=dict)
     lines: np.ndarray | None = None
     notes: list = field(default_factory=list)
+    sha256: str = ""
 
 
 def _name_and_unit(name):
@@ -221,7 +225,7 @@ def read_trace(path, wanted, required):
             if np.any(bad):
                 k = int(np.argmax(bad))
                 raise DataFileError(
-                    f"line {lines[k]}, column {names[role]!r}: temperature "
+                    f"row {lines[k]}, column {names[role]!r}: temperature "
                     f"{_temperature_problem(float(values[k]))}", path=path)
         else:
             values = values * _UNITS[role][unit]
@@ -229,11 +233,11 @@ def read_trace(path, wanted, required):
     steps = np.diff(si["time"])
     if np.any(steps <= 0):
         k = int(np.argmax(steps <= 0)) + 1
-        raise DataFileError(f"line {lines[k]}, column {names['time']!r}: time does not increase; "
+        raise DataFileError(f"row {lines[k]}, column {names['time']!r}: time does not increase; "
                             "remove repeated rows and keep one run per file", path=path)
     if "pressure" in si and np.any(si["pressure"] < 0):
         k = int(np.argmax(si["pressure"] < 0))
-        raise DataFileError(f"line {lines[k]}, column {names['pressure']!r}: negative absolute "
+        raise DataFileError(f"row {lines[k]}, column {names['pressure']!r}: negative absolute "
                             "pressure; export the absolute pressure", path=path)
     if "dosed_mass" in si:
         m = si["dosed_mass"]
@@ -242,13 +246,16 @@ def read_trace(path, wanted, required):
         if total > 0 and np.any(drop > 0.01 * total):
             k = int(np.argmax(drop > 0.01 * total))
             raise DataFileError(
-                f"line {lines[k]}, column {names['dosed_mass']!r}: the dosed mass falls by more "
+                f"row {lines[k]}, column {names['dosed_mass']!r}: the dosed mass falls by more "
                 "than 1 % of the total; give the cumulative mass dosed (not the balance reading "
                 "of the feed vessel)", path=path)
         if np.any(m < -1e-9 - 0.01 * total):
             k = int(np.argmax(m < -1e-9 - 0.01 * total))
-            raise DataFileError(f"line {lines[k]}, column {names['dosed_mass']!r}: negative "
+            raise DataFileError(f"row {lines[k]}, column {names['dosed_mass']!r}: negative "
                                 "dosed mass; give the cumulative mass dosed", path=path)
+    with open(path, "rb") as handle:
+        digest = hashlib.sha256(handle.read()).hexdigest()
     return Trace(path=path, time=si["time"], temperature=si["temperature"],
                  heat_flow=si.get("heat_flow"), dosed_mass=si.get("dosed_mass"),
-                 pressure=si.get("pressure"), columns=names, lines=lines, notes=notes)
+                 pressure=si.get("pressure"), columns=names, lines=lines, notes=notes,
+                 sha256=digest)

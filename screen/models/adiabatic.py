@@ -303,7 +303,8 @@ class Exotherm:
 
 def find_exotherm(temperature, rate, threshold=DEFAULT_THRESHOLD, rebound=1.5,
                   valley=3.0):
-    """Locate the exotherm: walk back from the highest temperature over the maximum rate down to
+    """Locate the exotherm: walk back from the highest temperature (from where the rate is
+    twice the threshold) over the maximum rate down to
     where the self-heat rate falls below ``threshold`` or rises again by ``rebound`` (a heat step
     of the heat-wait-search sequence) (design).
 
@@ -334,9 +335,11 @@ def find_exotherm(temperature, rate, threshold=DEFAULT_THRESHOLD, rebound=1.5,
     threshold = _positive(threshold, "threshold", "K/s")
     i = int(np.argmax(temp))
     t_max_index = i
-    while i > 0 and r[i] < threshold:
+    # the slow end of an exotherm hovers around the threshold: start where the rate is clearly
+    # (twice) above it
+    while i > 0 and r[i] < 2.0 * threshold:
         i -= 1
-    if r[i] < threshold:
+    if r[i] < 2.0 * threshold:
         raise ModelDomainError(
             f"no self-heating above {threshold * 60:g} K/min before the highest temperature")
     first, cut = i, False
@@ -546,8 +549,9 @@ def fit_self_heat_rate(temperature, rate, onset_temperature, total_rise, initial
 
 
 def conversion_before_onset(time, temperature, activation_energy, ln_pre_exponential_factor):
-    """Conversion reached before the detected onset, a_0 = int A exp(-E/(R T(t))) dt over the
-    record before it (small-conversion form of da/dt; derived).
+    """Conversion reached before the detected onset, a_0 = 1 - exp(-int A exp(-E/(R T(t))) dt)
+    over the record before it (first-order form; for small a_0 every order gives the integral
+    itself; derived).
 
     Parameters
     ----------

@@ -416,16 +416,34 @@ def write_pngs(result, directory):
     list of pathlib.Path
         Files written (existing figures of the same name are replaced).
     """
+    return save_pngs(figures(result), directory, "the kinetics figures (--png-dir)")
+
+
+def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)"):
+    """Save matplotlib figures as ``NAME.png`` in ``directory`` (created if needed).
+
+    Parameters
+    ----------
+    figures_by_name : dict of str -> matplotlib.figure.Figure
+    directory : str or pathlib.Path
+    purpose : str
+        What needs matplotlib, for the message when it is missing.
+
+    Returns
+    -------
+    list of pathlib.Path
+        Files written (existing figures of the same name are replaced).
+    """
     from screen.report.mpl import require_matplotlib
 
-    require_matplotlib("the kinetics figures (--png-dir)").use("Agg")
+    require_matplotlib(purpose).use("Agg")
     target = Path(directory)
     try:
         target.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise OutputError(f"cannot create the folder ({exc.strerror})", path=str(target)) from None
     written = []
-    for name, fig in figures(result).items():
+    for name, fig in figures_by_name.items():
         path = target / f"{name}.png"
         try:
             fig.savefig(path, dpi=120)
