@@ -74,6 +74,19 @@ def command_line(repeat):
                      max(1, repeat // 2))
     rows.append(("check --uncertainty 100000 (8 inputs)", uncertain,
                  ratio(uncertain, check, "check")))
+    with tempfile.TemporaryDirectory() as folder:
+        sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+        from calorimetry_simulation import semibatch_trace, write_csv
+
+        trace = os.path.join(folder, "trace.csv")
+        write_csv(trace, semibatch_trace(dt=0.216),  # 100,001 rows
+                  ["time_s", "reactor_temperature_degC", "heat_flow_W", "dosed_mass_kg"],
+                  fmt="%.5f")
+        heat_flow = wall(CLI + ["heat-flow", trace, "--initial-mass", "1.2 kg",
+                                "--specific-heat", "1.9 kJ/(kg K)", "--feed-temperature",
+                                "20 degC", "--json"], repeat)
+    rows.append(("heat-flow, 100,000-row trace (--json)", heat_flow,
+                 ratio(heat_flow, check, "check")))
     help_text = subprocess.run(CLI + ["--help"], capture_output=True, text=True).stdout
     if "\n  report" in help_text:
         with tempfile.TemporaryDirectory() as folder:

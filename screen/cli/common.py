@@ -101,3 +101,46 @@ def timestamp() -> str:
     return datetime.now(timezone.utc).replace(microsecond=0).isoformat()
 
 
+def deliver(result, *, to_dict, summary, fragment, write_pngs, output, force, png_dir, as_json,
+            written_what):
+    """Shared tail of the analysis commands (kinetics, heat-flow): check the ``-o`` target
+    before any figure is written, write the PNGs, write the case-file fragment through the one
+    atomic writer, then print the JSON object or the text summary.
+
+    Parameters
+    ----------
+    result : object
+        The analysis result.
+    to_dict, summary, fragment, write_pngs : callable
+        Presenters taking the result (``write_pngs`` also the folder).
+    output : str or None
+        Fragment file (``-o``); never overwritten without ``force``.
+    force : bool
+    png_dir : str or None
+    as_json : bool
+    written_what : str
+        What the fragment holds, for the text message ("[decomposition] section").
+    """
+    import json
+
+    from screen.io.fileio import check_writable, write_atomic
+
+    text = fragment(result) if output else None
+    if output:
+        check_writable(output, force)  # before any figure is written: no partial output
+    written = write_pngs(result, png_dir) if png_dir else []
+    if output:
+        write_atomic(output, text.encode("utf-8"), force=force)
+    if as_json:
+        payload = to_dict(result)
+        if output:
+            payload["output"] = str(output)
+        if written:
+            payload["figures"] = [str(p) for p in written]
+        click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
+    else:
+        click.echo(summary(result))
+        if output:
+            click.echo(f"\n{written_what} written to {output}")
+        for path in written:
+            click.echo(f"figure written: {path}")

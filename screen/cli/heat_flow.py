@@ -2,8 +2,6 @@
 trace (thin command module)."""
 from __future__ import annotations
 
-import json
-
 import click
 
 
@@ -80,7 +78,8 @@ def heat_flow_command(trace, initial_mass, specific_heat, limiting_amount, feed_
 def _run(trace, initial_mass, specific_heat, limiting_amount, feed_temperature,
          feed_specific_heat, baseline, as_json, output, force, png_dir):
     from screen.analyses.heat_flow import analyse_heat_flow
-    from screen.io.fileio import check_writable, write_atomic
+    from screen.cli.common import deliver
+    from screen.io.fileio import check_writable
     from screen.report import heat_flow as present
 
     m0 = positive_quantity(initial_mass, "mass", "--initial-mass")
@@ -94,20 +93,7 @@ def _run(trace, initial_mass, specific_heat, limiting_amount, feed_temperature,
     if output:
         check_writable(output, force)  # fail before the work, leave nothing behind
     result = analyse_heat_flow(trace, m0, cp, amount, t_feed, cp_feed, baseline)
-    text = present.case_fragment(result) if output else None
-    written = present.write_pngs(result, png_dir) if png_dir else []
-    if output:
-        write_atomic(output, text.encode("utf-8"), force=force)
-    if as_json:
-        payload = present.result_to_dict(result)
-        if output:
-            payload["output"] = str(output)
-        if written:
-            payload["figures"] = [str(p) for p in written]
-        click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
-    else:
-        click.echo(present.format_summary(result))
-        if output:
-            click.echo(f"\n[synthesis] and [process] keys written to {output}")
-        for path in written:
-            click.echo(f"figure written: {path}")
+    deliver(result, to_dict=present.result_to_dict, summary=present.format_summary,
+            fragment=present.case_fragment, write_pngs=present.write_pngs, output=output,
+            force=force, png_dir=png_dir, as_json=as_json,
+            written_what="[synthesis] and [process] keys")

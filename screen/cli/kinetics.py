@@ -1,13 +1,12 @@
 """``runaway-screen kinetics``: decomposition kinetics from DSC runs (thin command module)."""
 from __future__ import annotations
 
-import json
-
 import click
 
 from screen.analyses.kinetics import analyse_kinetics
 from screen.errors import ScreenError
-from screen.io.fileio import check_writable, write_atomic
+from screen.cli.common import deliver
+from screen.io.fileio import check_writable
 from screen.report.kinetics import (
     decomposition_toml,
     format_summary,
@@ -114,25 +113,9 @@ def _run_kinetics(thermograms, peaks, sample_mass, heating_rate, exo_up, baselin
         thermograms, peaks, sample_mass, heating_rate, exo_up, baseline, integration_range,
         model, onset, energy, detection_limit, specific_heat, confidence,
     )
-    text = decomposition_toml(result) if output else None
-    if output:
-        check_writable(output, force)  # before any figure is written: no partial output
-    written = write_pngs(result, png_dir) if png_dir else []
-    if output:
-        write_atomic(output, text.encode("utf-8"), force=force)
-    if as_json:
-        payload = result_to_dict(result)
-        if output:
-            payload["output"] = str(output)
-        if written:
-            payload["figures"] = [str(p) for p in written]
-        click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
-    else:
-        click.echo(format_summary(result))
-        if output:
-            click.echo(f"\n[decomposition] section written to {output}")
-        for path in written:
-            click.echo(f"figure written: {path}")
+    deliver(result, to_dict=result_to_dict, summary=format_summary,
+            fragment=decomposition_toml, write_pngs=write_pngs, output=output, force=force,
+            png_dir=png_dir, as_json=as_json, written_what="[decomposition] section")
 
 
 def _reject(option, message):
@@ -174,23 +157,10 @@ def _run_adiabatic(params, given):
     result = analyse_adiabatic(params["adiabatic"], phi=params["phi"], sample_mass=sample_mass,
                                specific_heat=cp, cell_mass=cell_mass,
                                cell_specific_heat=cell_cp, threshold=threshold_value)
-    text = present.decomposition_toml(result) if output else None
-    written = present.write_pngs(result, params["png_dir"]) if params["png_dir"] else []
-    if output:
-        write_atomic(output, text.encode("utf-8"), force=force)
-    if params["as_json"]:
-        payload = present.result_to_dict(result)
-        if output:
-            payload["output"] = str(output)
-        if written:
-            payload["figures"] = [str(p) for p in written]
-        click.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
-    else:
-        click.echo(present.format_summary(result))
-        if output:
-            click.echo(f"\n[decomposition] section written to {output}")
-        for path in written:
-            click.echo(f"figure written: {path}")
+    deliver(result, to_dict=present.result_to_dict, summary=present.format_summary,
+            fragment=present.decomposition_toml, write_pngs=present.write_pngs, output=output,
+            force=force, png_dir=params["png_dir"], as_json=params["as_json"],
+            written_what="[decomposition] section")
 
 
 def _rate(text):

@@ -12,16 +12,8 @@ import numpy as np
 
 from screen.analyses.adiabatic_run import CAUTIONS_EXTRA
 from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
-from screen.errors import CaseError, ModelDomainError
-
-
-def _f(value, scale=1.0):
-    if value is None:
-        return None
-    value = float(value) / scale
-    if not math.isfinite(value):
-        raise ModelDomainError("a result is not finite; the run cannot be analysed as given")
-    return value
+from screen.errors import CaseError
+from screen.report.kinetics import _f, _toml_string, closing_lines
 
 
 def result_to_dict(result):
@@ -144,14 +136,7 @@ def format_summary(result):
     for note in d["notes"][:-1] if d["notes"] and d["notes"][-1] == d["order_reason"] else d["notes"]:
         if note != d["order_reason"]:
             lines.append(f"  note: {note}")
-    if d["warnings"]:
-        lines.append("")
-        lines.append("Warnings")
-        lines.extend(f"  ! {w}" for w in d["warnings"])
-    lines.append("")
-    lines.append("Cautions")
-    lines.extend(f"  - {c}" for c in d["cautions"])
-    return "\n".join(lines)
+    return "\n".join(lines + closing_lines(d))
 
 
 def decomposition_toml(result):
@@ -170,7 +155,6 @@ def decomposition_toml(result):
     screen.errors.CaseError
         Without the sample c'p (the energy cannot be given).
     """
-    import json
     import tomllib
 
     from screen.cautions import SHORT_CAUTION
@@ -180,9 +164,6 @@ def decomposition_toml(result):
         raise CaseError("the [decomposition] section needs the energy: give the sample's "
                         "--specific-heat (e.g. '1.9 kJ/(kg K)') so that energy = c'p x corrected "
                         "rise", key="--output")
-
-    def q(text):
-        return json.dumps(str(text), ensure_ascii=False)
 
     fit = r.fit
     name = Path(r.path).name
@@ -198,16 +179,16 @@ def decomposition_toml(result):
     for w in r.warnings:
         lines.append("# Warning: " + " ".join(w.split()))
     lines.append("[decomposition]")
-    lines.append(f"energy = {q('%.4g kJ/kg' % (r.energy / 1e3))}")
-    lines.append(f"model = {q(fit.model)}")
-    lines.append(f"activation_energy = {q('%.4g kJ/mol' % (fit.activation_energy / 1e3))}")
-    lines.append(f"pre_exponential_factor = {q('%.5g 1/s' % math.exp(fit.ln_pre_exponential_factor))}")
+    lines.append(f"energy = {_toml_string('%.4g kJ/kg' % (r.energy / 1e3))}")
+    lines.append(f"model = {_toml_string(fit.model)}")
+    lines.append(f"activation_energy = {_toml_string('%.4g kJ/mol' % (fit.activation_energy / 1e3))}")
+    lines.append(f"pre_exponential_factor = {_toml_string('%.5g 1/s' % math.exp(fit.ln_pre_exponential_factor))}")
     if fit.model == "nth-order":
         lines.append(f"order = {fit.order:.4g}")
-    lines.append(f"onset_temperature = {q('%.1f degC' % (r.onset_corrected - ZERO_CELSIUS))}")
-    lines.append(f"onset_method = {q(f'adiabatic heat-wait-search run {name}, threshold {r.threshold * 60:g} K/min, measured {r.onset - ZERO_CELSIUS:.1f} degC, phi-corrected (Fisher et al. 1992)')}")
-    lines.append(f"lowest_measured_temperature = {q('%.1f degC' % (r.onset - ZERO_CELSIUS))}")
-    lines.append(f"source = {q(f'{name} (sha256 {r.sha256[:16]}...)')}")
+    lines.append(f"onset_temperature = {_toml_string('%.1f degC' % (r.onset_corrected - ZERO_CELSIUS))}")
+    lines.append(f"onset_method = {_toml_string(f'adiabatic heat-wait-search run {name}, threshold {r.threshold * 60:g} K/min, measured {r.onset - ZERO_CELSIUS:.1f} degC, phi-corrected (Fisher et al. 1992)')}")
+    lines.append(f"lowest_measured_temperature = {_toml_string('%.1f degC' % (r.onset - ZERO_CELSIUS))}")
+    lines.append(f"source = {_toml_string(f'{name} (sha256 {r.sha256[:16]}...)')}")
     text = "\n".join(lines) + "\n"
     tomllib.loads(text)
     return text

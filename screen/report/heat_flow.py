@@ -5,23 +5,13 @@ physics (see :mod:`screen.analyses.heat_flow`).
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 
 import numpy as np
 
 from screen.analyses.heat_flow import CAUTIONS_EXTRA, CURVE_POINTS
 from screen.constants import SECONDS_PER_HOUR, ZERO_CELSIUS
-from screen.errors import ModelDomainError
-
-
-def _f(value, scale=1.0):
-    if value is None:
-        return None
-    value = float(value) / scale
-    if not math.isfinite(value):
-        raise ModelDomainError("a result is not finite; the trace cannot be analysed as given")
-    return value
+from screen.report.kinetics import _f, _toml_string, closing_lines
 
 
 def result_to_dict(result, curve_points=CURVE_POINTS):
@@ -131,20 +121,7 @@ def format_summary(result):
     lines.append(f"  baseline: {d['input']['baseline']}")
     for note in d["notes"]:
         lines.append(f"  note: {note}")
-    if d["warnings"]:
-        lines.append("")
-        lines.append("Warnings")
-        lines.extend(f"  ! {w}" for w in d["warnings"])
-    lines.append("")
-    lines.append("Cautions")
-    lines.extend(f"  - {c}" for c in d["cautions"])
-    return "\n".join(lines)
-
-
-def _q(text):
-    import json
-
-    return json.dumps(str(text), ensure_ascii=False)
+    return "\n".join(lines + closing_lines(d))
 
 
 def case_fragment(result):
@@ -180,18 +157,18 @@ def case_fragment(result):
         lines.append("# Warning: " + " ".join(w.split()))
     lines.append("[synthesis]")
     if r.limiting_amount is not None:
-        lines.append(f"molar_enthalpy = {_q('%.5g kJ/mol' % (r.molar_enthalpy / 1e3))}")
-        lines.append(f"limiting_amount = {_q('%.5g mol' % r.limiting_amount)}")
-        lines.append(f"# energy = {_q('%.5g kJ/kg' % (r.synthesis_energy / 1e3))}   "
+        lines.append(f"molar_enthalpy = {_toml_string('%.5g kJ/mol' % (r.molar_enthalpy / 1e3))}")
+        lines.append(f"limiting_amount = {_toml_string('%.5g mol' % r.limiting_amount)}")
+        lines.append(f"# energy = {_toml_string('%.5g kJ/kg' % (r.synthesis_energy / 1e3))}   "
                      "(same heat per kg of final mass; give one form only)")
     else:
-        lines.append(f"energy = {_q('%.5g kJ/kg' % (r.synthesis_energy / 1e3))}")
+        lines.append(f"energy = {_toml_string('%.5g kJ/kg' % (r.synthesis_energy / 1e3))}")
     if r.peak_heat_release_rate > 0:
-        lines.append(f"peak_heat_release_rate = {_q('%.4g W/kg' % r.peak_heat_release_rate)}")
+        lines.append(f"peak_heat_release_rate = {_toml_string('%.4g W/kg' % r.peak_heat_release_rate)}")
     if r.dosing_start is not None and r.dosing_end > r.dosing_start:
-        lines.append(f"dosing_time = {_q('%.4g h' % ((r.dosing_end - r.dosing_start) / SECONDS_PER_HOUR))}")
+        lines.append(f"dosing_time = {_toml_string('%.4g h' % ((r.dosing_end - r.dosing_start) / SECONDS_PER_HOUR))}")
     lines.append("[process]")
-    lines.append(f"mode = {_q(r.mode)}")
+    lines.append(f"mode = {_toml_string(r.mode)}")
     accumulation = min(max(r.max_accumulation, 0.0), 1.0)
     lines.append(f"accumulation = {accumulation:.4f}")
     ratio = min(max(r.mass_ratio, 1e-6), 1.0)

@@ -191,6 +191,24 @@ def _fmt(value, spec):
     return format(value, spec)
 
 
+def closing_lines(data):
+    """The "Warnings" and "Cautions" blocks that end every text summary.
+
+    Parameters
+    ----------
+    data : dict
+        A result dictionary with ``warnings`` and ``cautions`` lists.
+
+    Returns
+    -------
+    list of str
+    """
+    lines = []
+    if data["warnings"]:
+        lines += ["", "Warnings"] + [f"  ! {w}" for w in data["warnings"]]
+    return lines + ["", "Cautions"] + [f"  - {c}" for c in data["cautions"]]
+
+
 def format_summary(result):
     """Human-readable multi-line summary of a :class:`KineticsResult`.
 
@@ -284,14 +302,7 @@ def format_summary(result):
                      "no published basis; not a safety limit)")
     else:
         lines.append(f"TD24 crude screening estimate: not available ({td['crude']['reason']})")
-    if d["warnings"]:
-        lines.append("")
-        lines.append("Warnings")
-        lines.extend(f"  ! {w}" for w in d["warnings"])
-    lines.append("")
-    lines.append("Cautions")
-    lines.extend(f"  - {c}" for c in d["cautions"])
-    return "\n".join(lines)
+    return "\n".join(lines + closing_lines(d))
 
 
 # --------------------------------------------------------------------------------------------
