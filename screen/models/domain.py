@@ -14,7 +14,7 @@ Examples
 >>> require_positive(-1.0, "mass", "kg")
 Traceback (most recent call last):
 ...
-screen.errors.ModelDomainError: mass = -1.0 kg is out of range; accepted: a finite value > 0 kg
+screen.errors.ModelDomainError: mass: mass = -1.0 kg is out of range; accepted: a finite value > 0 kg
 """
 
 from __future__ import annotations
