@@ -242,10 +242,11 @@ def _decomposition_at_mtt(case, mtt):
     peak = fresh
     if kinetics.model == "autocatalytic":
         # f = a^m (1-a)^n peaks at a* = m/(m+n) (derived); isothermal rate at MTT there.
-        m, n = float(kinetics.autocatalytic_order), float(kinetics.order)
-        a0 = float(kinetics.initial_conversion)
-        star = 1.0 - 1e-9 if n == 0 else m / (m + n)  # same a* as screen.analyses.vessels
-        peak = max(fresh, float(kinetics.heat_release_rate(mtt, max(star, a0))))
+        from screen.models.decomposition import conversion_of_maximum_rate_factor
+
+        star = conversion_of_maximum_rate_factor(kinetics.order, kinetics.autocatalytic_order,
+                                                 kinetics.initial_conversion)
+        peak = max(fresh, float(kinetics.heat_release_rate(mtt, star)))
     return kinetics, basis, fresh, peak
 
 

@@ -238,8 +238,9 @@ def _vessel_cooling(case, inputs: SimulationInputs):
     losses = float(vessel.heat_losses or 0.0)
     if losses > 0.0:
         # Losses are a second conductance to ambient: one equivalent line, as in screen.analyses.vessels.
-        coolant = (ua * coolant + losses * float(vessel.ambient_temperature)) / (ua + losses)
-        ua += losses
+        from screen.models.semenov import effective_cooling
+
+        ua, coolant = effective_cooling(ua, coolant, losses, float(vessel.ambient_temperature))
         note += f"; heat losses {losses:.4g} W/K to ambient added"
     return vessel, ua, coolant, note
 

@@ -108,9 +108,8 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
     conversion_basis = None
     warnings: list[str] = []
     if kinetics.model == "autocatalytic":
-        m_order, n_order = float(kinetics.autocatalytic_order), float(kinetics.order)
-        a_star = 1.0 - 1e-9 if n_order == 0 else m_order / (m_order + n_order)
-        a_star = max(float(kinetics.initial_conversion), a_star)
+        a_star = float(dm.conversion_of_maximum_rate_factor(
+            kinetics.order, kinetics.autocatalytic_order, kinetics.initial_conversion))
         q_ref = float(kinetics.heat_release_rate(t_ref, conversion=a_star))
         conversion_basis = a_star
         warnings.append(
@@ -141,8 +140,7 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
         t_amb = vessel.ambient_temperature
         if losses > 0.0:
             # Losses act as extra conductance to ambient: combine into one equivalent line.
-            ua_eff = ua + losses
-            t_c_eff = (ua * t_c + losses * float(t_amb)) / ua_eff
+            ua_eff, t_c_eff = semenov.effective_cooling(ua, t_c, losses, float(t_amb))
         else:
             ua_eff, t_c_eff = ua, t_c
         tau = float(semenov.cooling_time_constant(mass, cp, ua_eff))

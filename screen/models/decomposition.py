@@ -387,6 +387,42 @@ def _check_conversion(conversion) -> np.ndarray:
 
 
 
+def conversion_of_maximum_rate_factor(order, autocatalytic_order, initial_conversion=0.0):
+    """Conversion at which the rate factor f(a) = a^m (1 - a)^n of an autocatalytic reaction
+    peaks, a* = m/(m + n), not below the initial conversion (derived: d ln f/da = 0).
+
+    Isothermal balances that freeze the rate at one conversion (the vessel heat balance, the
+    barrier's heat release at the MTT) use it for autocatalytic kinetics: the fresh-mass rate
+    at a0 is far below the rate the mass reaches.
+
+    Parameters
+    ----------
+    order : float or array_like
+        Reaction order n. [-]
+    autocatalytic_order : float or array_like
+        Autocatalytic order m. [-]
+    initial_conversion : float or array_like
+        Initial conversion a0. [-]
+
+    Returns
+    -------
+    float or numpy.ndarray
+        a* (1 - 1e-9 for n = 0, where f grows to the end). [-]
+
+    Examples
+    --------
+    m = 1, n = 1: f = a (1 - a) peaks at a = 1/2.
+
+    >>> conversion_of_maximum_rate_factor(1.0, 1.0, 0.01)
+    0.5
+    """
+    n = np.asarray(order, dtype=float)
+    m = np.asarray(autocatalytic_order, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        peak = np.where(n == 0.0, 1.0 - 1e-9, m / (m + n))
+    return scalar_or_array(np.maximum(np.asarray(initial_conversion, dtype=float), peak))
+
+
 def validate_kinetics(kinetics, key_prefix="decomposition"):
     """Check that decomposition kinetics make physical sense.
 

@@ -205,18 +205,18 @@ def effective_cooling(ua, coolant_temperature, heat_losses, ambient_temperature)
 
     Parameters
     ----------
-    ua : float
+    ua : float or array_like
         Jacket U A. [W/K]
     coolant_temperature : float or array_like
         Coolant temperature. [K]
-    heat_losses : float
+    heat_losses : float or array_like
         Loss coefficient to ambient L. [W/K]
-    ambient_temperature : float
+    ambient_temperature : float or array_like
         Ambient temperature. [K]
 
     Returns
     -------
-    tuple of (float, float or numpy.ndarray)
+    tuple of (float or numpy.ndarray, float or numpy.ndarray)
         ``(U A + L, (U A T_c + L T_amb)/(U A + L))`` [W/K, K]; derived from
         ``U A (T - T_c) + L (T - T_amb) = (U A + L)(T - T_eff)``. Pass them as ``ua`` and
         ``coolant_temperature`` to the functions of this module.
@@ -226,7 +226,7 @@ def effective_cooling(ua, coolant_temperature, heat_losses, ambient_temperature)
     losses = require_non_negative(heat_losses, "heat_losses")
     t_amb = require_positive(ambient_temperature, "ambient_temperature")
     total = ua_ + losses
-    return float(total), scalar_or_array((ua_ * t_c + losses * t_amb) / total)
+    return scalar_or_array(total), scalar_or_array((ua_ * t_c + losses * t_amb) / total)
 
 
 # Tangency and critical point --------------------------------------------------------------------

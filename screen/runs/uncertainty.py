@@ -529,6 +529,8 @@ def sampled_kinetics(case, results, values=None):
 
 
 def _compose(values, context, size, crit, dm):
+    from screen.models.semenov import effective_cooling
+
     def full(x):
         return np.broadcast_to(np.asarray(x, dtype=float), (size,))
 
@@ -576,11 +578,10 @@ def _compose(values, context, size, crit, dm):
     # as fed, or for an autocatalytic decomposition the maximum of a^m (1-a)^n, a* = m/(m+n).
     conversion = None
     if kinetics.model == "autocatalytic":
-        m = np.asarray(kinetics.autocatalytic_order, dtype=float)
-        n_order = np.asarray(kinetics.order, dtype=float)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            a_star = np.where(n_order == 0.0, 1.0 - 1e-9, m / (m + n_order))
-        conversion = np.maximum(np.asarray(kinetics.initial_conversion, dtype=float), a_star)
+        from screen.models.decomposition import conversion_of_maximum_rate_factor
+
+        conversion = np.asarray(conversion_of_maximum_rate_factor(
+            kinetics.order, kinetics.autocatalytic_order, kinetics.initial_conversion))
     for vessel in context.vessels:
         n = vessel["index"]
         key = f"vessel.{n}."
@@ -595,8 +596,7 @@ def _compose(values, context, size, crit, dm):
             # Losses to ambient fold into one equivalent cooling line (as in screen.analyses.vessels).
             losses = np.asarray(losses)
             t_amb = np.asarray(values[key + "ambient_temperature"])
-            ua_eff = ua + losses
-            t_c_eff = (ua * t_c + losses * t_amb) / ua_eff
+            ua_eff, t_c_eff = effective_cooling(ua, t_c, losses, t_amb)
         else:
             ua_eff, t_c_eff = ua, t_c
         with np.errstate(all="ignore"):
