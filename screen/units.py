@@ -41,6 +41,7 @@ DIMENSIONS: dict[str, tuple[str, str]] = {
     "velocity": ("[length]/[time]", "m/s"),
     "mass_flow": ("[mass]/[time]", "kg/s"),
     "second_order_rate_constant": ("[volume]/[substance]/[time]", "m^3/(mol*s)"),
+    "heating_rate": ("[temperature]/[time]", "K/s"),
 }
 
 #: Example strings used in error messages, one per kind.
@@ -67,6 +68,7 @@ EXAMPLES: dict[str, str] = {
     "velocity": '"8 m/s"',
     "mass_flow": '"0.2 kg/s"',
     "second_order_rate_constant": '"1.2e-6 m^3/(mol s)"',
+    "heating_rate": '"10 K/min"',
 }
 
 #: Smallest magnitude accepted other than 0 (design): far below any physical input, above the
@@ -174,9 +176,13 @@ def parse_quantity(raw, kind: str, key: str, path: str | None = None) -> ParsedQ
         raise UnitError(f"got {_shown(raw)}; an uncertainty after ± must be positive", key, path)
     if not unit_text:
         raise UnitError(f"got {_shown(raw)} without a unit; write e.g. {example}", key, path)
-    if _GAUGE_RE.search(unit_text):
-        raise UnitError(f"got {_shown(raw)}; gauge pressure units are ambiguous here: give the absolute "
-                        f"pressure, e.g. \"3.5 bar\"", key, path)
+    gauge = _GAUGE_RE.fullmatch(unit_text.strip())
+    if _GAUGE_RE.search(unit_text) and (kind != "pressure" or gauge is None):
+        raise UnitError(f"got {_shown(raw)}; a gauge unit (barg, psig, kPag, MPag) is accepted alone "
+                        f"and only for a pressure: write e.g. \"3.5 barg\" or the absolute "
+                        f"\"4.5 bar\"", key, path)
+    if gauge is not None:
+        return _parse_gauge_pressure(raw, value, std, gauge.group(1), key, path)
     unit_text = _normalise_unit(unit_text)
     ureg = registry()
     try:
@@ -281,6 +287,25 @@ def parse_dimensionless(raw, key: str, path: str | None = None) -> ParsedQuantit
         raise UnitError(f"got {_shown(raw)}; a value this close to zero is a typing error (write 0 or "
                         f"check the exponent)", key, path)
     return ParsedQuantity(value, std, raw, "1")
+
+
+#: Gauge pressure units and their scale to Pa. A gauge pressure is converted to absolute by adding
+#: the standard atmosphere, 101325 Pa (ISO 2533:1975, Standard Atmosphere, sea level), stated in
+#: docs/case-format.md: at a site above sea level the real ambient pressure is lower, so the
+#: absolute value is then slightly high (about 1 kPa per 100 m of altitude).
+GAUGE_UNITS_PA = {"barg": 1e5, "psig": 6894.757293168361, "kpag": 1e3, "mpag": 1e6}
+
+
+def _parse_gauge_pressure(raw, value, std, unit, key, path) -> ParsedQuantity:
+    """A gauge pressure ("3.5 barg") as an absolute pressure [Pa]: value x scale + 101325 Pa."""
+    from screen.constants import STANDARD_ATMOSPHERE
+
+    scale = GAUGE_UNITS_PA[unit.lower()]
+    absolute = value * scale + STANDARD_ATMOSPHERE
+    if not absolute > 0.0:
+        raise UnitError(f"got {_shown(raw)} = {absolute:.6g} Pa absolute (gauge + standard "
+                        f"atmosphere 1.01325 bar); an absolute pressure must be above 0", key, path)
+    return ParsedQuantity(float(absolute), None if std is None else float(std * scale), raw, "Pa")
 
 
 def to_celsius(kelvin):

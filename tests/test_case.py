@@ -121,10 +121,14 @@ def test_uncertainty_recorded(tmp_path):
     assert case.uncertainties["decomposition.activation_energy"].std == pytest.approx(8000.0)
 
 
-def test_semi_batch_without_mass_ratio_warns(tmp_path):
+def test_semi_batch_without_mass_ratio_is_refused_naming_the_key(tmp_path):
+    # Issue 18 item 6 (fail closed): the ratio 1 gives the lowest MTSR
+    # (MTSR = T_p + X_ac dT_ad / ratio, Stoessel, Chem. Eng. Prog. 89(10) 1993), so it is never
+    # taken silently; without feed data the key is required.
     path = write(tmp_path, BASE.replace('mode = "batch"', 'mode = "semi-batch"\naccumulation = 0.3'))
-    case = load_case(path)
-    assert any("underestimated" in w for w in case.warnings)
+    with pytest.raises(CaseError, match="accumulation_mass_ratio") as info:
+        load_case(path)
+    assert info.value.key == "process.accumulation_mass_ratio"
 
 
 def test_every_schema_key_is_documented():

@@ -141,10 +141,17 @@ def test_above_correlation_range_is_a_lower_bound_and_never_below(tmp_path):
                                              decomposition_energy="500 kJ/kg"))
     pressure = result.results["pressure"]
     final = next(e for e in pressure["vapour_pressures"] if e["point"] == "final temperature")
-    assert final["range"] == "above range"
-    assert final["evaluated_at_degC"] == pytest.approx(510.0 - ZERO_CELSIUS)
+    # Issue 13 item 4: above the critical temperature (dichloromethane 510 K: CRC Handbook of
+    # Chemistry and Physics, critical constants table, from memory; the bundled table's value)
+    # no vapour pressure is printed: null with above_critical_temperature true.
+    assert final["range"] == "above critical temperature"
+    assert final["above_critical_temperature"] is True
+    assert final["vapour_pressure_bar"] is None
     vessel = pressure["vessels"][0]
     assert vessel["is_lower_bound"] is True
+    assert vessel["vapour_bar"] is None and vessel["total_bar"] is None
+    assert vessel["total_lower_bound_bar"] == pytest.approx(
+        vessel["pad_gas_bar"] + vessel["decomposition_gas_bar"], rel=1e-9)
     assert vessel["verdict"] == "not assessed"
     assert any("NOT ASSESSED" in text for text in result.warnings)
 
@@ -228,3 +235,18 @@ def test_unknown_solvent_exit_2(tmp_path):
     assert result.exit_code == 2
     err = result.stderr.strip()
     assert "\n" not in err and "solvent.name" in err
+
+
+def test_above_critical_temperature_without_set_pressure_is_not_acceptable(tmp_path):
+    # Issue 13 item 4: a closed-vessel verdict above the critical temperature must not read as
+    # acceptable ("no set pressure" read as neutral before): "not assessed", value null.
+    solvent = 'name = "dichloromethane"\npressure = "3 bar"\ngas_yield = "0.1 mol/kg"'
+    extra = 'headspace_volume = "0.8 m^3"'
+    result = screen_text(tmp_path, case_text(solvent=solvent, vessel_extra=extra,
+                                             decomposition_energy="500 kJ/kg"))
+    vessel = result.results["pressure"]["vessels"][0]
+    assert vessel["above_critical_temperature"] is True
+    assert vessel["verdict"] == "not assessed"
+    assert "critical temperature" in vessel["reason"]
+    lines = "\n".join(result.results["pressure"]["summary_lines"])
+    assert "above T_c" in lines

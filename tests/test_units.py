@@ -59,7 +59,9 @@ def test_uncertainty_is_parsed_in_si():
     ("-300 degC", "temperature", "above 0 K"),
     ("0 K", "temperature", "above 0 K"),
     ("5 blorgs", "length", "not known"),
-    ("3 barg", "pressure", "absolute"),
+    ("3 barg", "temperature", "gauge"),
+    ("3 barg/s", "pressure", "gauge"),
+    ("-2 barg", "pressure", "above 0"),
     (True, "mass", "expected"),
     ([1, 2], "mass", "expected"),
 ])
@@ -95,3 +97,19 @@ def test_random_strings_only_raise_our_error(text):
         except ScreenError:
             continue
         assert math.isfinite(parsed.value)
+
+
+@pytest.mark.parametrize("raw, expected_pa", [
+    # Gauge + standard atmosphere 101325 Pa (ISO 2533:1975); 1 psi = 6894.757293 Pa (NIST SP 811,
+    # 2008, appendix B).
+    ("3.5 barg", 3.5e5 + 101325.0),
+    ("0 barg", 101325.0),
+    ("50 psig", 50 * 6894.757293168 + 101325.0),
+    ("250 kPag", 250e3 + 101325.0),
+    ("-0.5 barg", 101325.0 - 0.5e5),
+])
+def test_gauge_pressure_converted_with_standard_atmosphere(raw, expected_pa):
+    # Issue 13 item 4: "barg" was refused before.
+    parsed = parse_quantity(raw, "pressure", "vessel.relief_set_pressure", "case.toml")
+    assert parsed.value == pytest.approx(expected_pa, rel=1e-12)
+    assert parsed.text == raw

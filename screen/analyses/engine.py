@@ -15,10 +15,11 @@ from typing import Any
 import numpy as np
 
 from screen import __version__
-from screen.analyses import barrier, pressure, simulation
+from screen.analyses import barrier, pressure, simulation, technical_limits
 from screen.analyses.inputs import (
     ONSET_ESTIMATE_ACTIVATION_ENERGY,
     ONSET_ESTIMATE_DETECTION_LIMIT,
+    accumulation_mass_ratio,
     characteristic_temperatures,
     decomposition_kinetics,
     synthesis_specific_energy,
@@ -160,7 +161,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     rise_syn = float(thermal.adiabatic_temperature_rise(q_syn, cp))
     if process.mode == "semi-batch":
         accumulation = float(process.accumulation)
-        mass_ratio = float(process.get("accumulation_mass_ratio", 1.0))
+        mass_ratio, _ = accumulation_mass_ratio(case)
     else:
         accumulation = float(process.get("accumulation", 1.0))
         mass_ratio = 1.0
@@ -332,6 +333,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     _add_vessels(case, result, kinetics, mtsr)
     _add_analyses(case, result, curves)
     _class_from_simulated_mtsr(result, t_p, mtt, td24)
+    technical_limits.apply_technical_limits(case, result, _verdict_text)
     return result
 
 

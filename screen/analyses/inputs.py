@@ -137,3 +137,34 @@ def _kinetics_key(kinetics) -> tuple:
             float(kinetics.autocatalytic_order), float(kinetics.initial_conversion),
             None if kinetics.log_pre_exponential_factor is None
             else float(kinetics.log_pre_exponential_factor))
+
+
+def accumulation_mass_ratio(case) -> tuple[float, str]:
+    """Mass present at the maximum accumulation over the final mass, and its basis.
+
+    Semi-batch only (batch: 1, the mass does not change). As given
+    (``process.accumulation_mass_ratio``, basis ``"declared"``); else derived from the feed data
+    as the smallest physically possible ratio, the initial charge over the final mass
+    (``synthesis_kinetics.initial_mass / mass.amount``, basis ``"derived"``): the maximum
+    accumulation cannot occur in less mass than was charged before dosing, and the smallest
+    ratio gives the highest MTSR (fail closed; derived). The case loader refuses a semi-batch
+    case that has neither.
+
+    Returns
+    -------
+    tuple of (float, str)
+        Ratio (0..1] [-] and ``"declared"``, ``"derived"`` or ``"batch"``.
+    """
+    process = case.sections["process"]
+    if process.mode != "semi-batch":
+        return 1.0, "batch"
+    if process.accumulation_mass_ratio is not None:
+        return float(process.accumulation_mass_ratio), "declared"
+    kinetics = case.sections.get("synthesis_kinetics")
+    initial = None if kinetics is None else kinetics.initial_mass
+    if initial is None:
+        from screen.errors import CaseError
+        from screen.io.case import MASS_RATIO_MISSING
+
+        raise CaseError(MASS_RATIO_MISSING, "process.accumulation_mass_ratio", case.path)
+    return min(float(initial) / float(case.sections["mass"].amount), 1.0), "derived"

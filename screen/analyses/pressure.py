@@ -31,6 +31,9 @@ __all__ = ["add_pressure", "clipped_vapour_pressure", "closed_vessel_estimate"]
 
 _BAR = 1e5
 
+#: Status of a temperature at or above the solvent's critical temperature.
+ABOVE_CRITICAL = "above critical temperature"
+
 
 def clipped_vapour_pressure(solvent, temperature: float) -> tuple[float, float, str]:
     """Vapour pressure, evaluated at the nearest end of the correlation's range if outside.
@@ -44,17 +47,22 @@ def clipped_vapour_pressure(solvent, temperature: float) -> tuple[float, float, 
 
     Returns
     -------
-    pressure : float
-        Vapour pressure at ``min(max(T, T_min), T_max)``. [Pa]
+    pressure : float or None
+        Vapour pressure at ``min(max(T, T_min), T_max)``; None at or above the critical
+        temperature, where a vapour pressure does not exist. [Pa]
     evaluated_at : float
-        Temperature at which it was evaluated. [K]
+        Temperature at which it was evaluated (the critical temperature when above it). [K]
     status : str
         ``"in range"``, ``"above range"`` (the value is a lower bound: the real pressure of the
-        heated, possibly supercritical solvent is higher) or ``"below range"`` (an upper bound).
+        heated solvent is higher), ``"below range"`` (an upper bound) or
+        ``"above critical temperature"`` (no value).
     """
     from screen.models.solvents import vapour_pressure
 
     low, high = solvent.minimum_temperature, solvent.maximum_temperature
+    if temperature >= solvent.critical_temperature:
+        # No liquid, no vapour pressure: the value is not defined (issue 13 item 4).
+        return None, float(solvent.critical_temperature), ABOVE_CRITICAL
     if temperature > high:
         return float(vapour_pressure(solvent, high)), high, "above range"
     if temperature < low:
@@ -102,12 +110,15 @@ def closed_vessel_estimate(temperature: float, solvent, headspace_volume: float,
     else:
         vapour, _, status = clipped_vapour_pressure(solvent, temperature)
         vapour_closing, _, _ = clipped_vapour_pressure(solvent, closing_temperature)
+        vapour_closing = vapour_closing or 0.0
     # The liquid cannot be below its boiling point at closing (the engine checks T_p <= MTT), so
     # a negative pad gas only comes from the clipping; count no pad gas then.
     pad_gas = max(closing_pressure - vapour_closing, 0.0) * temperature / closing_temperature
     gas = ideal_gas_pressure(gas_moles, temperature, headspace_volume)
+    # Above the critical temperature the vapour term is unknown (None); the total is then the
+    # pad gas and decomposition gas alone, a lower bound.
     return {"vapour": vapour, "pad_gas": pad_gas, "decomposition_gas": gas,
-            "total": vapour + pad_gas + gas, "vapour_status": status}
+            "total": (vapour or 0.0) + pad_gas + gas, "vapour_status": status}
 
 
 
@@ -188,6 +199,15 @@ def add_pressure(case, result, curves: bool = True) -> None:
     if solvent is not None:
         for label, temperature in points:
             pressure, at, status = clipped_vapour_pressure(solvent, temperature)
+            if status == ABOVE_CRITICAL:
+                entries.append({"point": label, "temperature_degC": _c(temperature),
+                                 "vapour_pressure_bar": None, "above_critical_temperature": True,
+                                 "evaluated_at_degC": None, "range": status,
+                                 "note": (f"above the critical temperature of {solvent.name} "
+                                          f"({_c(solvent.critical_temperature):.1f} degC): no "
+                                          f"liquid, no vapour pressure; the pressure of the "
+                                          f"supercritical solvent is not computed")})
+                continue
             note = {"in range": "",
                     "above range": f"above the correlation range (to "
                                    f"{solvent.maximum_temperature:g} K): value at its end, a "
@@ -197,6 +217,7 @@ def add_pressure(case, result, curves: bool = True) -> None:
                                    f"upper bound"}[status]
             entries.append({"point": label, "temperature_degC": _c(temperature),
                             "vapour_pressure_bar": pressure / _BAR,
+                            "above_critical_temperature": False,
                             "evaluated_at_degC": _c(at), "range": status, "note": note})
 
     gas_yield = solvent_section.gas_yield
@@ -224,11 +245,21 @@ def add_pressure(case, result, curves: bool = True) -> None:
             lower_bound_reasons.append("no solvent name, vapour not counted")
         elif estimate["vapour_status"] == "above range":
             lower_bound_reasons.append("vapour pressure above the correlation range")
+        elif estimate["vapour_status"] == ABOVE_CRITICAL:
+            lower_bound_reasons.append(
+                f"above the critical temperature of {solvent.name} "
+                f"({_c(solvent.critical_temperature):.1f} degC): the supercritical solvent's "
+                f"pressure is not computed, only pad gas and decomposition gas are counted")
         if gas_yield is None:
             lower_bound_reasons.append("solvent.gas_yield not given, decomposition gas not "
                                        "counted")
         total = estimate["total"]
-        if set_pressure is None:
+        supercritical = estimate["vapour_status"] == ABOVE_CRITICAL
+        if set_pressure is None and supercritical:
+            verdict, reason = "not assessed", (
+                f"at least {total / _BAR:.4g} bar(a) ({'; '.join(lower_bound_reasons)}); no "
+                f"relief_set_pressure given: the pressure is not bounded by this screening")
+        elif set_pressure is None:
             verdict, reason = "no set pressure", (
                 f"{total / _BAR:.4g} bar(a); no relief_set_pressure given to compare with")
         else:
@@ -245,10 +276,12 @@ def add_pressure(case, result, curves: bool = True) -> None:
             "batch_mass_kg": mass,
             "temperature_degC": _c(final_temperature),
             "gas_moles": gas_moles,
-            "vapour_bar": estimate["vapour"] / _BAR,
+            "vapour_bar": None if estimate["vapour"] is None else estimate["vapour"] / _BAR,
+            "above_critical_temperature": supercritical,
             "pad_gas_bar": estimate["pad_gas"] / _BAR,
             "decomposition_gas_bar": estimate["decomposition_gas"] / _BAR,
-            "total_bar": total / _BAR,
+            "total_bar": None if supercritical else total / _BAR,
+            "total_lower_bound_bar": total / _BAR,
             "is_lower_bound": bool(lower_bound_reasons),
             "relief_set_pressure_bar": None if set_pressure is None else float(set_pressure) / _BAR,
             "verdict": verdict,
@@ -303,18 +336,26 @@ def _summary_lines(r: dict) -> list[str]:
         lines.append(f"  boiling point at that pressure      "
                      f"{r['boiling_temperature_degC']:6.1f} degC")
     for entry in r["vapour_pressures"]:
+        if entry["range"] == ABOVE_CRITICAL:
+            lines.append(f"  p_sat at {entry['point'][:26]:<26} {entry['temperature_degC']:6.1f} degC "
+                         f"   none (above T_c)")
+            continue
         flag = {"in range": "", "above range": " (lower bound)",
                 "below range": " (upper bound)"}[entry["range"]]
         lines.append(f"  p_sat at {entry['point'][:26]:<26} {entry['temperature_degC']:6.1f} degC "
                      f"{entry['vapour_pressure_bar']:8.3g} bar{flag}")
     for vessel in r["vessels"]:
         bound = " (at least: lower bound)" if vessel.get("is_lower_bound") else ""
-        lines.append(f"  closed {vessel['vessel'][:30]}: {vessel['total_bar']:.3g} bar(a) at "
+        total = vessel["total_bar"]
+        total = vessel["total_lower_bound_bar"] if total is None else total
+        lines.append(f"  closed {vessel['vessel'][:30]}: {total:.3g} bar(a) at "
                      f"{vessel['temperature_degC']:.0f} degC{bound}")
         lines.append(f"    -> {vessel['verdict']}")
         gas = ("? (no gas_yield)" if vessel.get("gas_moles") in (None, 0, 0.0)
                and vessel.get("is_lower_bound") else f"{vessel['decomposition_gas_bar']:.3g} bar")
-        lines.append(f"    vapour {vessel['vapour_bar']:.3g} + pad gas {vessel['pad_gas_bar']:.3g}"
+        vapour = ("? (supercritical)" if vessel["vapour_bar"] is None
+                  else f"{vessel['vapour_bar']:.3g}")
+        lines.append(f"    vapour {vapour} + pad gas {vessel['pad_gas_bar']:.3g}"
                      f" bar + decomposition gas {gas}")
         lines.append(f"    headspace {vessel['headspace_m3']:.3g} m3")
         if vessel["relief_set_pressure_bar"] is not None:

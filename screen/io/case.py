@@ -545,6 +545,13 @@ def case_with_changes(case: Case, changes=None, vessel_changes=None, drop=(), la
                                overrides=case.overrides + ((label,) if label else ()))
 
 
+#: Message when a semi-batch case gives neither the mass ratio nor the initial charge.
+MASS_RATIO_MISSING = (
+    "semi-batch needs accumulation_mass_ratio (mass present at the maximum accumulation over "
+    "the final mass, 0..1], e.g. 0.8), or synthesis_kinetics.initial_mass so that the smallest "
+    "possible ratio (initial charge / final mass) can be taken; 1 would give the lowest MTSR")
+
+
 def _check_consistency(sections, vessels, path, warnings) -> None:
     """Cross-field rules: sign conventions, required combinations, impossible orderings."""
     process = sections["process"]
@@ -575,10 +582,16 @@ def _check_consistency(sections, vessels, path, warnings) -> None:
                             "reaction calorimetry, e.g. accumulation = 0.35",
                             "process.accumulation", path)
         if not process.given("accumulation_mass_ratio"):
+            # Fail closed (issue 18 item 6): never 1 by default, the ratio of the lowest MTSR.
+            kinetics = sections.get("synthesis_kinetics")
+            initial = None if kinetics is None else kinetics.initial_mass
+            if initial is None:
+                raise CaseError(MASS_RATIO_MISSING, "process.accumulation_mass_ratio", path)
+            ratio = min(float(initial) / float(sections["mass"].amount), 1.0)
             warnings.append(
-                "process.accumulation_mass_ratio not given: taken as 1 (accumulated heat spread "
-                "over the final mass); MTSR may then be underestimated if the maximum "
-                "accumulation occurs before the end of dosing.")
+                f"process.accumulation_mass_ratio not given: taken as the smallest possible "
+                f"ratio, initial charge / final mass = {ratio:.3g} (synthesis_kinetics."
+                f"initial_mass / mass.amount; the highest MTSR). Give the measured ratio.")
     else:
         if process.given("accumulation") and process.accumulation < 1.0 and not process.given(
                 "accumulation_basis"):

@@ -103,11 +103,26 @@ SCHEMA: dict[str, dict[str, Field]] = {
         "initial_conversion": _f("number", "Initial conversion a0 (autocatalytic)",
                                  minimum=0.0, maximum=1.0, exclusive_minimum=True,
                                  exclusive_maximum=True),
-        "onset_temperature": _f("temperature", "DSC onset (information only)"),
+        "onset_temperature": _f("temperature", "DSC onset (information only when kinetics are "
+                                "given; else the basis of the crude estimate)"),
+        "onset_type": _f("choice", "Which onset onset_temperature is: the detection point (heat "
+                         "flow first above the detection limit) or the extrapolated tangent onset "
+                         "of a dynamic run", choices=("detection-point", "extrapolated")),
+        "onset_detection_limit": _f("specific_power", "Detection limit of the instrument, per kg "
+                                    "of sample (detection-point onset)", **POSITIVE),
+        "onset_scan_rate": _f("heating_rate", "Heating rate of the dynamic DSC run "
+                              "(extrapolated onset)", **POSITIVE),
+        "basis": _f("choice", "measured kinetics, or an onset-estimate (a section written from a "
+                    "single onset: never treated as measured kinetics)",
+                    choices=("measured", "onset-estimate")),
         "onset_method": _f("text", "How the onset was obtained (instrument, crucible, scan rate)"),
         "lowest_measured_temperature": _f(
             "temperature", "Lowest temperature at which the kinetics were measured"),
         "source": _f("text", "Where the kinetics come from (report, DSC run ids)"),
+        "validated_range": _f("bool", "The kinetics with reactant consumption were validated "
+                                      "(e.g. by adiabatic calorimetry) from MTSR up to the "
+                                      "runaway: the integrated nth-order TMRad then governs even "
+                                      "where the zero-order value is more critical"),
     },
     "vessel": {
         "name": _f("text", "Vessel name", required=True),
@@ -128,9 +143,16 @@ SCHEMA: dict[str, dict[str, Field]] = {
                                **POSITIVE),
         "relief_set_pressure": _f("pressure", "Set pressure of the relief device (absolute)",
                                   **POSITIVE),
+        "closed": _f("bool", "Closed vessel (true) or open to a condenser or vent (false, "
+                             "default); a closed vessel's MTT is the temperature at which vapour "
+                             "and pad gas reach relief_set_pressure"),
         "condenser_duty": _f("power", "Condenser capacity as a duty", **POSITIVE),
         "condenser_ua": _f("thermal_conductance", "Condenser U A", **POSITIVE),
-        "condenser_coolant_temperature": _f("temperature", "Condenser coolant temperature"),
+        "condenser_coolant_temperature": _f("temperature", "Condenser coolant temperature "
+                                            "(inlet)"),
+        "condenser_coolant_outlet_temperature": _f(
+            "temperature", "Condenser coolant outlet temperature (for the log-mean temperature "
+            "difference)"),
         "vapour_line_diameter": _f("length", "Inner diameter of the vapour line", **POSITIVE),
     },
     "synthesis_kinetics": {
@@ -231,6 +253,8 @@ PLAUSIBLE_LIMITS: dict[tuple[str, str], tuple[float | None, float | None]] = {
     ("solvent", "amount"): (None, 1e7),
     ("solvent", "latent_heat"): (1.0, 1e8),
     ("solvent", "gas_yield"): (None, 1e3),  # [mol/kg]; pure hydrogen is about 500 mol/kg
+    ("decomposition", "onset_detection_limit"): (1e-3, 1e4),  # [W/kg]
+    ("decomposition", "onset_scan_rate"): (1e-4, 10.0),  # 0.006-600 K/min [K/s]
 }
 
 

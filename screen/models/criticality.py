@@ -132,6 +132,41 @@ def severity_level(adiabatic_rise, levels: int = 4):
     raise ValueError("levels must be 3 or 4")
 
 
+def severity_with_pressure(adiabatic_rise, levels: int = 4, pressure_increase: bool = False):
+    """Severity, never at the lowest level when the runaway raises the pressure.
+
+    The lowest level of the published scheme ("negligible"; "low" of three) requires a small
+    adiabatic rise AND no pressure increase (Stoessel 2008, Thermal Safety of Chemical
+    Processes, ch. 3, severity table; from memory). A runaway that forms gas or takes the mass
+    above its boiling point at the operating pressure is therefore graded at least "medium".
+
+    Parameters
+    ----------
+    adiabatic_rise : float
+        Final temperature minus process temperature. [K]
+    levels : {3, 4}
+        As :func:`severity_level`.
+    pressure_increase : bool
+        The runaway raises the pressure (gas yield given, or final temperature above the boiling
+        point at the operating pressure).
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> severity_with_pressure(20.0, 4, pressure_increase=True)
+    'medium'
+    >>> severity_with_pressure(20.0, 3, pressure_increase=False)
+    'low'
+    """
+    level = severity_level(adiabatic_rise, levels)
+    if pressure_increase and level in (SEVERITY_4_LEVELS[0], SEVERITY_3_LEVELS[0]):
+        return "medium"
+    return level
+
+
 def probability_level(tmrad_hours, levels: int = 6):
     """Probability of a runaway from TMRad at MTSR.
 

@@ -947,6 +947,37 @@ def tmrad_townsend_tou_for(kinetics, start_temperature, specific_heat):
         return scalar_or_array(np.exp(log_time))
 
 
+def townsend_tou_equivalent(kinetics):
+    """Zero-order kinetics with the heat release rate of the fresh mass of ``kinetics``.
+
+    ln A' = ln A + ln f(a0) - ln(1 - a0), so that q'(T) = q(T, a0) at every temperature; its
+    TMRad is the Townsend-Tou value (:func:`tmrad_townsend_tou_for`) and its TD24 the zero-order
+    TD24 (Townsend & Tou, Thermochim. Acta 37 (1980) 1-30; derived).
+
+    Parameters
+    ----------
+    kinetics : DecompositionKinetics
+        Scalar decomposition kinetics.
+
+    Returns
+    -------
+    DecompositionKinetics
+        Zero-order kinetics, same energy and activation energy. [SI]
+    """
+    if kinetics.model == "zero-order":
+        return kinetics
+    log_factor = (float(kinetics.log_pre_exponential_factor)
+                  + float(kinetics._log_conversion_function(
+                      np.asarray(kinetics.initial_conversion, dtype=float)))
+                  - math.log1p(-float(kinetics.initial_conversion)))
+    with np.errstate(over="ignore"):
+        factor = float(np.exp(log_factor))
+    return DecompositionKinetics(model="zero-order", energy=float(kinetics.energy),
+                                 activation_energy=float(kinetics.activation_energy),
+                                 pre_exponential_factor=factor, order=0.0,
+                                 log_pre_exponential_factor=log_factor)
+
+
 # ----------------------------------------------------------------------------------------------
 # TD24 / TD8
 # ----------------------------------------------------------------------------------------------

@@ -278,3 +278,76 @@ def relief_verdict(pressure: float, relief_set_pressure: float, margin: float = 
     if ratio >= 1.0 - margin:
         return "near", f"{text}: within {margin:.0%} of the set pressure (design margin)"
     return "below", f"{text}: below the set pressure by more than {margin:.0%}"
+
+
+def pressure_limit_temperature(
+    set_pressure: float,
+    solvent: Solvent | None,
+    closing_pressure: float,
+    closing_temperature: float,
+) -> tuple[float, str]:
+    """Temperature at which a closed vessel reaches the relief set pressure (its MTT).
+
+    Solves, for T at or above the closing temperature T_0,
+
+    .. math:: p_{sat}(T) + (p_0 - p_{sat}(T_0))\\,T/T_0 = p_{set}
+
+    the vapour and pad-gas terms of :func:`closed_vessel_pressure_components` (pure solvent,
+    ideal pad gas, no decomposition gas: the gas of the runaway comes after the MTT). Without a
+    solvent the pad gas alone: :math:`T = T_0\\, p_{set} / p_0` (ideal gas law at constant
+    volume). The maximum technical temperature of a closed vessel is the temperature at which
+    the pressure reaches the set pressure of the relief system (Stoessel 2008, Thermal Safety of
+    Chemical Processes, ch. 3, from memory).
+
+    Parameters
+    ----------
+    set_pressure : float
+        Relief set pressure, absolute. [Pa]
+    solvent : Solvent or None
+        The volatile solvent (None: no vapour counted).
+    closing_pressure : float
+        Absolute pressure when the vessel was closed (the operating pressure). [Pa]
+    closing_temperature : float
+        Temperature when it was closed (T_p). [K]
+
+    Returns
+    -------
+    tuple of (float, str)
+        ``(T, "reached")``, or ``(T_end, "beyond data")`` when the set pressure is not reached
+        up to the end of the vapour-pressure correlation or the critical temperature (the MTT
+        is then above T_end, not known). [K]
+
+    Raises
+    ------
+    ModelDomainError
+        Non-physical input, or a set pressure already reached at the closing temperature.
+    """
+    from scipy.optimize import brentq
+
+    set_pressure = _positive(set_pressure, "set pressure", "Pa")
+    closing_pressure = _positive(closing_pressure, "closing pressure", "Pa")
+    t0 = _positive(closing_temperature, "closing temperature", "K")
+    if solvent is None:
+        if set_pressure <= closing_pressure:
+            raise ModelDomainError(
+                f"set pressure {set_pressure / 1e5:.4g} bar(a) is not above the operating "
+                f"pressure {closing_pressure / 1e5:.4g} bar(a)")
+        return t0 * set_pressure / closing_pressure, "reached"
+    low, high = solvent.minimum_temperature, solvent.maximum_temperature
+    high = min(high, solvent.critical_temperature)
+    if not low <= t0 <= high:
+        raise ModelDomainError(
+            f"closing temperature {t0:.6g} K is outside the vapour-pressure data of "
+            f"{solvent.name} ({low:g} K to {high:g} K)")
+    pad0 = max(closing_pressure - vapour_pressure(solvent, t0), 0.0)
+
+    def excess(t):
+        return vapour_pressure(solvent, t) + pad0 * t / t0 - set_pressure
+
+    if excess(t0) >= 0.0:
+        raise ModelDomainError(
+            f"set pressure {set_pressure / 1e5:.4g} bar(a) is already reached at the process "
+            f"temperature ({excess(t0) + set_pressure:.6g} Pa of vapour and pad gas)")
+    if excess(high) < 0.0:
+        return float(high), "beyond data"
+    return float(brentq(excess, t0, high, xtol=1e-9, rtol=1e-14)), "reached"

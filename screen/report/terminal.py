@@ -77,6 +77,10 @@ def format_check(data: dict) -> str:
     lines.append(f"  TMRad at T_p                   {format_hours(r['tmrad_at_process_temperature_h'])}")
     lines.append(f"  TMRad at MTSR                  {format_hours(r['tmrad_at_mtsr_h'])}"
                  f"   (zero-order estimate {format_hours(r['tmrad_at_mtsr_zero_order_h'])})")
+    if r.get("tmrad_governing"):
+        lines.append(f"  Townsend-Tou (zero order)      {format_hours(r['tmrad_at_mtsr_townsend_tou_h'])}"
+                     f" at MTSR, TD24 {r['td24_townsend_tou_degC']:.1f} degC")
+        lines.append(_wrap(f"governs: {r['tmrad_governing']}", "    "))
     if "dsc_onset_degC" in r:
         lines.append(f"  DSC onset (info only)          {r['dsc_onset_degC']:8.1f} degC, "
                      f"{r['dsc_onset_minus_mtsr_K']:+.0f} K from MTSR")
@@ -137,6 +141,15 @@ def format_vessels(vessels) -> list[str]:
             f"{num(v.get('synthesis_cooling_ratio'), '7.2f')}")
     lines.append("  (Tc,crit and T_NR in degC; ratio = cooling capacity at T_p / peak heat release)")
     for v in vessels:
-        lines.append(textwrap.fill(f"{v['name']}: {v.get('verdict', '')}", WIDTH,
+        own = ""
+        if "criticality_class_computed" in v:
+            klass = v.get("criticality_class")
+            mtt = v.get("mtt_degC")
+            mtt_text = (f"{mtt:.1f} degC" if mtt is not None
+                        else f"above {v['mtt_lower_bound_degC']:.1f} degC"
+                        if v.get("mtt_lower_bound_degC") is not None else "no technical limit")
+            own = (f"class {klass if klass is not None else 'not granted'}, MTT {mtt_text}"
+                   + (" (closed)" if v.get("closed") else "") + "; ")
+        lines.append(textwrap.fill(f"{v['name']}: {own}{v.get('verdict', '')}", WIDTH,
                                    initial_indent="  - ", subsequent_indent="    "))
     return lines

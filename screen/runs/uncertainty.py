@@ -399,6 +399,7 @@ class _Context:
     reference_form: bool
     mtt_from_case: bool
     nominal_mtt: float
+    nominal_mass_ratio: float
     synthesis_from_energy: bool
     vessels: list = field(default_factory=list)
 
@@ -431,6 +432,7 @@ def _context(case, results) -> tuple[_Context, dict[str, float]]:
         reference_form=dec.given("reference_rate"),
         mtt_from_case=process.max_technical_temperature is not None,
         nominal_mtt=float(results["mtt_degC"]) + ZERO_CELSIUS,
+        nominal_mass_ratio=float(results["accumulation_mass_ratio"]),
         synthesis_from_energy=syn.given("energy"),
         vessels=vessels,
     )
@@ -545,7 +547,7 @@ def _compose(values, context, size, crit, dm):
     rise_syn = np.asarray(q_syn) / np.asarray(cp)
     if context.mode == "semi-batch":
         accumulation = values["process.accumulation"]
-        ratio = values.get("process.accumulation_mass_ratio", 1.0)
+        ratio = values.get("process.accumulation_mass_ratio", context.nominal_mass_ratio)
     else:
         accumulation = values.get("process.accumulation", 1.0)
         ratio = 1.0
