@@ -324,9 +324,9 @@ def pressure_limit_temperature(
     """
     from scipy.optimize import brentq
 
-    set_pressure = _positive(set_pressure, "set pressure", "Pa")
-    closing_pressure = _positive(closing_pressure, "closing pressure", "Pa")
-    t0 = _positive(closing_temperature, "closing temperature", "K")
+    set_pressure = require_positive(set_pressure, "set pressure", "Pa")
+    closing_pressure = require_positive(closing_pressure, "closing pressure", "Pa")
+    t0 = require_positive(closing_temperature, "closing temperature", "K")
     if solvent is None:
         if set_pressure <= closing_pressure:
             raise ModelDomainError(
