@@ -243,7 +243,7 @@ def test_above_critical_temperature_without_set_pressure_is_not_acceptable(tmp_p
     solvent = 'name = "dichloromethane"\npressure = "3 bar"\ngas_yield = "0.1 mol/kg"'
     extra = 'headspace_volume = "0.8 m^3"'
     result = screen_text(tmp_path, case_text(solvent=solvent, vessel_extra=extra,
-                                             decomposition_energy="500 kJ/kg"))
+                                             decomposition_energy="500 kJ/kg"), curves=True)
     vessel = result.results["pressure"]["vessels"][0]
     assert vessel["above_critical_temperature"] is True
     assert vessel["verdict"] == "not assessed"
