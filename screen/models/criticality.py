@@ -76,7 +76,12 @@ def criticality_class(process_temperature, mtsr, mtt, td24):
     Returns
     -------
     int or ndarray of int
-        Class 1..5 (Stoessel 1993). Ties go to the more critical class; TD24 <= T_p gives 5.
+        Class 1..5 (Stoessel 1993). Ties go to the more critical class; TD24 <= T_p gives 5. [-]
+
+    References
+    ----------
+    F. Stoessel, "What is your thermal risk?", Chem. Eng. Prog. 89(10) (1993) 68-75 (the five
+    classes from the order of T_p, MTSR, MTT and TD24; from memory, verify against the source).
 
     Examples
     --------
@@ -115,11 +120,17 @@ def severity_level(adiabatic_rise, levels: int = 4):
     levels : {3, 4}
         Four levels: >= 400 K catastrophic, >= 200 K critical, >= 50 K medium, else negligible.
         Three levels: >= 200 K high, >= 50 K medium, else low. (Stoessel 2008 ch. 3; bands from
-        memory; a value on a limit goes to the more severe level, design.)
+        memory; a value on a limit goes to the more severe level, design.) [-]
 
     Returns
     -------
     str
+        Severity word, one of SEVERITY_4_LEVELS or SEVERITY_3_LEVELS. [text]
+
+    References
+    ----------
+    F. Stoessel, "Thermal Safety of Chemical Processes: Risk Assessment and Process Design",
+    Wiley-VCH, Weinheim, 2008, ch. 3 (from memory, verify against the source).
     """
     rise = float(adiabatic_rise)
     if not np.isfinite(rise):
@@ -178,11 +189,17 @@ def probability_level(tmrad_hours, levels: int = 6):
         Six levels: <= 1 h frequent, <= 8 h probable, <= 24 h occasional, <= 50 h seldom,
         <= 100 h remote, else almost impossible. Three levels: <= 8 h high, <= 24 h medium,
         else low. (Stoessel 2008 ch. 3; bands from memory; a value on a limit goes to the more
-        severe level, design.)
+        severe level, design.) [-]
 
     Returns
     -------
     str
+        Probability word, one of PROBABILITY_6_LEVELS or PROBABILITY_3_LEVELS. [text]
+
+    References
+    ----------
+    F. Stoessel, "Thermal Safety of Chemical Processes: Risk Assessment and Process Design",
+    Wiley-VCH, Weinheim, 2008, ch. 3 (from memory, verify against the source).
     """
     tmr = float(tmrad_hours)
     if np.isnan(tmr) or tmr < 0:
@@ -195,14 +212,51 @@ def probability_level(tmrad_hours, levels: int = 6):
 
 
 def severity_codes(adiabatic_rise):
-    """Vectorised 4-level severity as integer codes 0..3 (index into SEVERITY_4_LEVELS)."""
+    """Vectorised 4-level severity as integer codes 0..3 (index into SEVERITY_4_LEVELS).
+
+    Parameters
+    ----------
+    adiabatic_rise : float or array
+        Final temperature minus process temperature; NaN (unknown) gives code 3. [K]
+
+    Returns
+    -------
+    numpy.ndarray of int
+        Code 0 negligible, 1 medium, 2 critical, 3 catastrophic. [-]
+
+    Examples
+    --------
+    Limits 50, 200 and 400 K (see severity_level); a rise on a limit takes the higher code:
+
+    >>> severity_codes([10.0, 50.0, 250.0, 400.0, float("nan")]).tolist()
+    [0, 1, 2, 3, 3]
+    """
     rise = np.asarray(adiabatic_rise, dtype=float)
     codes = np.searchsorted(np.array(SEVERITY_LIMITS), rise, side="right")
     return np.where(np.isnan(rise), 3, codes)  # unknown rise: "catastrophic" (fail closed)
 
 
 def probability_codes(tmrad_hours):
-    """Vectorised 6-level probability as integer codes 0..5 (index into PROBABILITY_6_LEVELS)."""
+    """Vectorised 6-level probability as integer codes 0..5 (index into PROBABILITY_6_LEVELS).
+
+    Parameters
+    ----------
+    tmrad_hours : float or array
+        TMRad of the decomposition started at MTSR; NaN (unknown) gives code 0. [h]
+
+    Returns
+    -------
+    numpy.ndarray of int
+        Code 0 frequent ... 5 almost impossible. [-]
+
+    Examples
+    --------
+    Limits 1, 8, 24, 50 and 100 h (see probability_level); a TMRad on a limit takes the more
+    severe (lower) code:
+
+    >>> probability_codes([0.5, 8.0, 30.0, 100.0, 200.0, float("nan")]).tolist()
+    [0, 1, 3, 4, 5, 0]
+    """
     tmr = np.asarray(tmrad_hours, dtype=float)
     codes = np.searchsorted(np.array(PROBABILITY_LIMITS), tmr, side="left")
     return np.where(np.isnan(tmr), 0, codes)  # unknown TMRad: "frequent" (fail closed)

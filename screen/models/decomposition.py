@@ -199,7 +199,7 @@ class DecompositionKinetics:
         Parameters
         ----------
         model : str
-            One of :data:`MODELS`.
+            One of :data:`MODELS`. [text]
         energy : float or array
             Heat released from a0 to complete decomposition, Q. [J/kg]
         activation_energy : float or array
@@ -218,6 +218,7 @@ class DecompositionKinetics:
         Returns
         -------
         DecompositionKinetics
+            [object]
 
         Raises
         ------
@@ -353,6 +354,7 @@ class DecompositionKinetics:
         Returns
         -------
         DecompositionKinetics
+            [object]
 
         Raises
         ------
@@ -429,14 +431,10 @@ def validate_kinetics(kinetics, key_prefix="decomposition"):
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Kinetics to check (arrays: every sample is checked).
+        Kinetics to check (arrays: every sample is checked). [object]
     key_prefix : str or None
         Prefix of the key path carried by the error (``"decomposition"`` gives
-        ``"decomposition.activation_energy"``).
-
-    Returns
-    -------
-    None
+        ``"decomposition.activation_energy"``). [text]
 
     Raises
     ------
@@ -816,7 +814,7 @@ def log_tmrad(kinetics, start_temperature, specific_heat):
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics.
+        Decomposition kinetics. [object]
     start_temperature : float or array
         Temperature at which cooling fails, T0. [K]
     specific_heat : float or array
@@ -878,7 +876,7 @@ def tmrad(kinetics, start_temperature, specific_heat):
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics.
+        Decomposition kinetics. [object]
     start_temperature : float or array
         Temperature at which cooling fails, T0. [K]
     specific_heat : float or array
@@ -917,7 +915,7 @@ def tmrad_townsend_tou_for(kinetics, start_temperature, specific_heat):
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics.
+        Decomposition kinetics. [object]
     start_temperature : float or array
         Start temperature T0. [K]
     specific_heat : float or array
@@ -1102,7 +1100,7 @@ def temperature_for_tmrad(kinetics, specific_heat, target_time, lower=DEFAULT_LO
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics.
+        Decomposition kinetics. [object]
     specific_heat : float or array
         Specific heat capacity c'p. [J/(kg K)]
     target_time : float or array
@@ -1198,7 +1196,7 @@ def temperature_for_time_to_maximum_rate(kinetics, specific_heat, target_time,
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics (scalar fields).
+        Decomposition kinetics (scalar fields). [object]
     specific_heat : float
         Specific heat capacity c'p. [J/(kg K)]
     target_time : float
@@ -1230,7 +1228,7 @@ def td24(kinetics, specific_heat, lower=DEFAULT_LOWER_TEMPERATURE,
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics (scalar fields).
+        Decomposition kinetics (scalar fields). [object]
     specific_heat : float
         Specific heat capacity c'p. [J/(kg K)]
     lower : float
@@ -1261,7 +1259,7 @@ def td8(kinetics, specific_heat, lower=DEFAULT_LOWER_TEMPERATURE,
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics (scalar fields).
+        Decomposition kinetics (scalar fields). [object]
     specific_heat : float
         Specific heat capacity c'p. [J/(kg K)]
     lower : float
@@ -1314,7 +1312,7 @@ def zero_order_is_conservative(kinetics, start_temperature, specific_heat):
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics.
+        Decomposition kinetics. [object]
     start_temperature : float or array
         Start temperature T0 (typically the MTSR). [K]
     specific_heat : float or array
@@ -1324,9 +1322,10 @@ def zero_order_is_conservative(kinetics, start_temperature, specific_heat):
     -------
     conservative : bool or numpy.ndarray of bool
         True where the zero-order estimate is conservative (broadcast shape; bool for scalars).
+        [bool]
     reason : str or list
         Why, one sentence per sample: a str for scalar input, else a nested list of str with
-        the broadcast shape (``numpy.ndarray.tolist`` layout).
+        the broadcast shape (``numpy.ndarray.tolist`` layout). [text]
 
     Raises
     ------
@@ -1394,7 +1393,7 @@ def adiabatic_course(kinetics, start_temperature, specific_heat, t_end=None, n_p
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Decomposition kinetics (scalar fields).
+        Decomposition kinetics (scalar fields). [object]
     start_temperature : float
         Temperature at which cooling fails, T0. [K]
     specific_heat : float
@@ -1404,7 +1403,7 @@ def adiabatic_course(kinetics, start_temperature, specific_heat, t_end=None, n_p
         is not reached within 1e13 s, the course ends there).
     n_points : int
         Number of points returned, >= 4: half evenly spaced in time, half evenly spaced in
-        temperature (so the steep runaway is resolved in a plot).
+        temperature (so the steep runaway is resolved in a plot). [-]
 
     Returns
     -------

@@ -46,11 +46,11 @@ def require_finite(value, name: str, unit: str = "", key: str | None = None):
     value : float or array_like
         The value to check [any unit].
     name : str
-        Name shown in the error.
+        Name shown in the error. [text]
     unit : str
-        Unit shown in the error.
+        Unit shown in the error. [text]
     key : str, optional
-        Case-file key of the value (defaults to ``name``).
+        Case-file key of the value (defaults to ``name``). [text]
 
     Returns
     -------
@@ -81,13 +81,13 @@ def require_positive(value, name: str, unit: str = "", key: str | None = None,
     value : float or array_like
         The value to check [any unit].
     name : str
-        Name shown in the error.
+        Name shown in the error. [text]
     unit : str
-        Unit shown in the error.
+        Unit shown in the error. [text]
     key : str, optional
-        Case-file key of the value (defaults to ``name``).
+        Case-file key of the value (defaults to ``name``). [text]
     allow_zero : bool
-        Accept zero.
+        Accept zero. [bool]
 
     Returns
     -------
@@ -118,11 +118,11 @@ def require_non_negative(value, name: str, unit: str = "", key: str | None = Non
     value : float or array_like
         The value to check [any unit].
     name : str
-        Name shown in the error.
+        Name shown in the error. [text]
     unit : str
-        Unit shown in the error.
+        Unit shown in the error. [text]
     key : str, optional
-        Case-file key of the value (defaults to ``name``).
+        Case-file key of the value (defaults to ``name``). [text]
 
     Returns
     -------
@@ -140,9 +140,9 @@ def require_fraction(value, name: str, key: str | None = None):
     value : float or array_like
         The fraction to check [-].
     name : str
-        Name shown in the error.
+        Name shown in the error. [text]
     key : str, optional
-        Case-file key of the value (defaults to ``name``).
+        Case-file key of the value (defaults to ``name``). [text]
 
     Returns
     -------

@@ -199,7 +199,7 @@ def linear_regression(x, y, confidence_level=0.95):
     LinearFit
         Slope, intercept, their standard errors and covariance (textbook OLS formulas:
         s^2 = RSS/(n-2), var(slope) = s^2/Sxx, var(intercept) = s^2 (1/n + xbar^2/Sxx),
-        cov = -xbar s^2/Sxx) and the t quantile t_{(1+cl)/2, n-2}.
+        cov = -xbar s^2/Sxx) and the t quantile t_{(1+cl)/2, n-2}. [object]
     """
     x = np.asarray(x, dtype=float)
     y = np.asarray(y, dtype=float)
@@ -341,6 +341,7 @@ def kissinger(heating_rates, peak_temperatures, confidence_level=0.95):
     Returns
     -------
     KissingerResult
+        E, ln A, their intervals and the regression. [object]
 
     Notes
     -----
@@ -351,6 +352,23 @@ def kissinger(heating_rates, peak_temperatures, confidence_level=0.95):
     follows from the intercept, ln A = intercept + ln(E/R), which is the regression form of
     A = (beta E/(R Tp^2)) exp(E/(R Tp)) and assumes first order. The interval on ln A uses
     var(ln A) = var(c) + var(s)/s^2 + 2 cov(c, s)/s (delta method, derived).
+
+    Examples
+    --------
+    Two runs, 5 K/min peaking at 500 K and 20 K/min peaking at 520 K. Through two points the
+    Kissinger line gives, by hand,
+    E = R ln[(beta2/T2^2)/(beta1/T1^2)] / (1/T1 - 1/T2)
+      = 8.314462618 * ln(4 * (500/520)^2) / (1/500 - 1/520)
+      = 8.314462618 * ln(3.698225) / 7.692308e-5 = 8.314462618 * 1.307853 / 7.692308e-5
+      = 141363 J/mol,
+    and ln A = ln(beta1 E/(R T1^2)) + E/(R T1) = ln(0.0833333 * 141363 / (8.314462618 * 500^2))
+    + 141363/(8.314462618 * 500) = ln(5.6670e-3) + 34.0043 = -5.1731 + 34.0043 = 28.831.
+
+    >>> result = kissinger([5.0 / 60.0, 20.0 / 60.0], [500.0, 520.0])
+    >>> round(result.activation_energy)
+    141363
+    >>> round(result.ln_pre_exponential_factor, 2)
+    28.83
     """
     beta, tp = _check_runs(heating_rates, peak_temperatures, "Kissinger")
     fit = linear_regression(1.0 / tp, np.log(beta / tp**2), confidence_level)
@@ -487,11 +505,12 @@ def astm_e698(heating_rates, peak_temperatures, confidence_level=0.95, tolerance
     tolerance : float
         Relative change of E that ends the iteration. [-]
     max_iterations : int
-        Upper limit of refinement steps.
+        Upper limit of refinement steps. [-]
 
     Returns
     -------
     AstmE698Result
+        [object]
 
     Notes
     -----
@@ -565,11 +584,33 @@ class IsoconversionalResult:
     confidence_level: float
 
     def spread(self, conversion_range=SPREAD_CONVERSION_RANGE):
-        """Relative spread (max - min)/mean of E_alpha inside ``conversion_range``. [-]"""
+        """Relative spread (max - min)/mean of E_alpha inside ``conversion_range``.
+
+        Parameters
+        ----------
+        conversion_range : tuple of float
+            (low, high) conversion limits, inclusive. [-]
+
+        Returns
+        -------
+        float
+            (max - min)/mean of E_alpha over the levels inside the range. [-]
+        """
         return activation_energy_spread(self.conversion, self.activation_energy, conversion_range)
 
     def mean(self, conversion_range=SPREAD_CONVERSION_RANGE):
-        """Mean of E_alpha inside ``conversion_range``. [J/mol]"""
+        """Mean of E_alpha inside ``conversion_range``.
+
+        Parameters
+        ----------
+        conversion_range : tuple of float
+            (low, high) conversion limits, inclusive. [-]
+
+        Returns
+        -------
+        float
+            Arithmetic mean of E_alpha over the levels inside the range. [J/mol]
+        """
         inside = _inside(self.conversion, conversion_range)
         return float(np.mean(self.activation_energy[inside]))
 
@@ -637,6 +678,7 @@ def friedman(conversion, temperatures, rates, confidence_level=0.95):
     Returns
     -------
     IsoconversionalResult
+        [object]
 
     Notes
     -----
@@ -683,15 +725,16 @@ def flynn_wall_ozawa(conversion, temperatures, heating_rates, confidence_level=0
     confidence_level : float
         Two-sided confidence level. [-]
     refine : bool
-        Refine Doyle's constant iteratively with the exact D(x) (as in ASTM E1641/E698).
+        Refine Doyle's constant iteratively with the exact D(x) (as in ASTM E1641/E698). [bool]
     tolerance : float
         Relative change of E that ends the refinement. [-]
     max_iterations : int
-        Upper limit of refinement steps.
+        Upper limit of refinement steps. [-]
 
     Returns
     -------
     IsoconversionalResult
+        [object]
 
     Notes
     -----
@@ -956,7 +999,7 @@ def analyse_peak(time, temperature, heat_flow, baseline="linear", temperature_wi
     heat_flow : array_like
         Specific heat flow with the exotherm positive. [W/kg]
     baseline : {"linear", "sigmoidal"}
-        Baseline construction between the integration limits.
+        Baseline construction between the integration limits. [text]
     temperature_window : tuple of float, optional
         (low, high) integration limits; found automatically when omitted. [K]
     detection_limit : float
@@ -969,6 +1012,7 @@ def analyse_peak(time, temperature, heat_flow, baseline="linear", temperature_wi
     Returns
     -------
     PeakAnalysis
+        [object]
 
     Notes
     -----
@@ -1157,7 +1201,7 @@ def isoconversional_points(analyses, conversion_levels):
     Parameters
     ----------
     analyses : sequence of PeakAnalysis
-        One per run.
+        One per run. [object]
     conversion_levels : array_like
         Levels alpha, strictly inside (0, 1). [-]
 
@@ -1242,6 +1286,16 @@ def maximum_of_reaction_model(order, autocatalytic_order=0.0):
     -------
     float
         1 for m = 0; m^m n^n / (m + n)^(m + n) at alpha = m/(m + n) otherwise (derived). [-]
+
+    Examples
+    --------
+    Prout-Tompkins m = n = 1: maximum at alpha = 1/2, f = 1/2 * 1/2 = 0.25. With m = 1, n = 3:
+    alpha = 1/4, f = (1/4) (3/4)^3 = 27/256 = 0.10546875.
+
+    >>> maximum_of_reaction_model(1.0, 1.0)
+    0.25
+    >>> round(maximum_of_reaction_model(3.0, 1.0), 8)
+    0.10546875
     """
     m, n = float(autocatalytic_order), float(order)
     if m < 0 or n < 0:
@@ -1338,20 +1392,22 @@ def fit_reaction_model(analyses, heating_rates, choice="auto", conversion_range=
     ----------
     analyses : sequence of PeakAnalysis
         One per run (at least one; two or more heating rates make E and the model separable).
+        [object]
     heating_rates : array_like
         Heating rate of each run. [K/s]
     choice : {"auto", "nth-order", "autocatalytic"}
-        Model to fit; "auto" selects by the rule in the notes.
+        Model to fit; "auto" selects by the rule in the notes. [text]
     conversion_range : tuple of float
         Conversion range used in the regression. [-]
     samples_per_run : int
-        Equally spaced conversion levels taken from each run (equal weight per run).
+        Equally spaced conversion levels taken from each run (equal weight per run). [-]
     confidence_level : float
         Two-sided confidence level. [-]
 
     Returns
     -------
     FittedModel
+        [object]
 
     Notes
     -----

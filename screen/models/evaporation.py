@@ -87,6 +87,14 @@ def vapour_mass_flow(heat_release_rate: float, latent_heat: float) -> float:
     ------
     ModelDomainError
         Negative heat release rate or non-positive latent heat.
+
+    Examples
+    --------
+    100 kW boiling water at 1 atm, latent heat 2257 kJ/kg (steam tables, from memory):
+    100e3 / 2257e3 = 0.044307 kg/s.
+
+    >>> round(vapour_mass_flow(100e3, 2257e3), 6)
+    0.044307
     """
     heat_release_rate = require_non_negative(heat_release_rate, "heat release rate", "W")
     latent_heat = require_positive(latent_heat, "latent heat", "J/kg")
@@ -213,6 +221,15 @@ def vapour_density_ideal_gas(molar_mass: float, pressure: float, temperature: fl
     -------
     float
         Vapour density. [kg/m^3]
+
+    Examples
+    --------
+    Water vapour (M = 18.015 g/mol) at 101325 Pa and 373.15 K, by hand:
+    0.018015 * 101325 / (8.314462618 * 373.15) = 1825.37 / 3102.55 = 0.58835 kg/m^3
+    (saturated steam tables give about 0.598 kg/m^3, from memory: the ideal gas is 1.6 % light).
+
+    >>> round(vapour_density_ideal_gas(0.018015, 101325.0, 373.15), 4)
+    0.5883
     """
     molar_mass = require_positive(molar_mass, "molar mass", "kg/mol")
     pressure = require_positive(pressure, "pressure", "Pa")
@@ -238,6 +255,14 @@ def vapour_velocity(vapour_mass_flow: float, vapour_density: float, diameter: fl
     -------
     float
         Superficial vapour velocity. [m/s]
+
+    Examples
+    --------
+    0.044307 kg/s of steam at 0.58835 kg/m^3 in a line of 0.1 m inner diameter, by hand:
+    4 * 0.044307 / (0.58835 * pi * 0.01) = 0.177228 / 0.0184837 = 9.588 m/s.
+
+    >>> round(vapour_velocity(0.044307, 0.58835, 0.1), 3)
+    9.588
     """
     vapour_mass_flow = require_non_negative(vapour_mass_flow, "vapour mass flow", "kg/s")
     vapour_density = require_positive(vapour_density, "vapour density", "kg/m^3")
@@ -293,7 +318,7 @@ def wallis_flooding_velocity(
     line_diameter : float
         Inner diameter of the vapour line. [m]
     condensate_counter_current : bool, optional
-        True when the condensate returns through the same line (the conservative default).
+        True when the condensate returns through the same line (the conservative default). [bool]
     wallis_constant : float, optional
         C; 0.725 for sharp-edged ends by default. [-]
     wallis_slope : float, optional
@@ -336,7 +361,7 @@ def kutateladze_flooding_velocity(
     surface_tension : float, optional
         Surface tension of the condensate; a low value is conservative. [N/m]
     condensate_counter_current : bool, optional
-        True when the condensate returns through the same line (the conservative default).
+        True when the condensate returns through the same line (the conservative default). [bool]
     critical_kutateladze_number : float, optional
         Ku at flooding without liquid flow; 3.2 by default. [-]
 
@@ -379,7 +404,7 @@ def flooding_velocity_limit(
     surface_tension : float, optional
         Surface tension of the condensate. [N/m]
     condensate_counter_current : bool, optional
-        True when the condensate returns through the same line.
+        True when the condensate returns through the same line. [bool]
 
     Returns
     -------
@@ -414,7 +439,7 @@ def bubble_rise_velocity(
     surface_tension : float, optional
         Surface tension; a low value is conservative. [N/m]
     regime : str, optional
-        ``"churn-turbulent"`` (low-viscosity, non-foaming), ``"bubbly"`` or ``"foamy"``.
+        ``"churn-turbulent"`` (low-viscosity, non-foaming), ``"bubbly"`` or ``"foamy"``. [text]
 
     Returns
     -------
@@ -461,7 +486,7 @@ def level_swell_onset_velocity(
     surface_tension : float, optional
         Surface tension; a low value is conservative. [N/m]
     regime : str, optional
-        ``"churn-turbulent"``, ``"bubbly"`` or ``"foamy"``.
+        ``"churn-turbulent"``, ``"bubbly"`` or ``"foamy"``. [text]
 
     Returns
     -------
@@ -748,19 +773,19 @@ def evaluate_barrier(
     surface_tension : float, optional
         Surface tension of the liquid at the boiling point. [N/m]
     swelling_regime : str, optional
-        ``"churn-turbulent"``, ``"bubbly"`` or ``"foamy"``.
+        ``"churn-turbulent"``, ``"bubbly"`` or ``"foamy"``. [text]
     condensate_returned : bool, optional
         True when the condensate flows back to the vessel (total reflux); then the solvent is not
-        depleted and the inventory check is skipped.
+        depleted and the inventory check is skipped. [bool]
     condensate_counter_current : bool, optional
-        True when the condensate runs back down the vapour line (lower flooding limit).
+        True when the condensate runs back down the vapour line (lower flooding limit). [bool]
     margin : float, optional
         Fraction below a limit that makes the verdict doubtful. [-]
 
     Returns
     -------
     BarrierAssessment
-        Figures, verdict and reasons.
+        Figures (SI units as in the class attributes), verdict and reasons. [object]
     """
     margin = float(margin)
     if not 0.0 <= margin < 1.0:
@@ -857,12 +882,13 @@ def barrier_verdict(**inputs) -> tuple[str, str]:
     Parameters
     ----------
     **inputs
-        The keyword arguments of :func:`evaluate_barrier` (unknown keywords are rejected).
+        The keyword arguments of :func:`evaluate_barrier` (unknown keywords are rejected), each
+        in the unit stated there. [object]
 
     Returns
     -------
     tuple of (str, str)
-        ``("holds" | "doubtful" | "fails", reasons joined into one line)``.
+        ``("holds" | "doubtful" | "fails", reasons joined into one line)``. [text]
     """
     assessment = evaluate_barrier(**inputs)
     return assessment.verdict, assessment.reason

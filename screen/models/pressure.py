@@ -78,6 +78,14 @@ def ideal_gas_pressure(gas_moles: float, temperature: float, volume: float) -> f
     ------
     ModelDomainError
         Negative amount, non-positive temperature or volume.
+
+    Examples
+    --------
+    One mole in the molar volume of an ideal gas at 273.15 K and 101.325 kPa, 22.413969 L
+    (CODATA 2018 recommended value): 8.314462618 * 273.15 / 0.022413969 = 101325.0 Pa.
+
+    >>> round(ideal_gas_pressure(1.0, 273.15, 0.022413969), 1)
+    101325.0
     """
     gas_moles = require_positive(gas_moles, "gas amount", "mol", allow_zero=True)
     temperature = require_positive(temperature, "temperature", "K")
@@ -138,7 +146,7 @@ def closed_vessel_pressure_components(
     temperature : float
         Temperature of the vessel contents. [K]
     solvent : Solvent
-        The volatile solvent (from :func:`screen.models.solvents.lookup_solvent`).
+        The volatile solvent (from :func:`screen.models.solvents.lookup_solvent`). [object]
     headspace_volume : float
         Gas volume above the liquid, taken as constant. [m^3]
     gas_moles : float, optional
@@ -212,7 +220,7 @@ def closed_vessel_pressure(
     temperature : float
         Temperature of the vessel contents. [K]
     solvent : Solvent
-        The volatile solvent.
+        The volatile solvent. [object]
     headspace_volume : float
         Gas volume above the liquid, taken as constant. [m^3]
     gas_moles : float, optional
@@ -259,7 +267,16 @@ def relief_verdict(pressure: float, relief_set_pressure: float, margin: float = 
     Returns
     -------
     tuple of (str, str)
-        ``("exceeds" | "near" | "below", reason)``.
+        ``("exceeds" | "near" | "below", reason)``. [text]
+
+    Examples
+    --------
+    Set pressure 10 bar(a), default margin 10 %: "near" from 0.9 * 10 = 9 bar(a) on.
+
+    >>> relief_verdict(9.0e5, 10.0e5)[0], relief_verdict(8.9e5, 10.0e5)[0]
+    ('near', 'below')
+    >>> relief_verdict(10.0e5, 10.0e5)[0]
+    'exceeds'
 
     Raises
     ------

@@ -164,7 +164,7 @@ class SynthesisKinetics:
         Parameters
         ----------
         scheme : {"first-order", "second-order"}
-            Rate law.
+            Rate law. [text]
         rate_constant : float
             k at the reference temperature. [1/s] or [m^3/(mol s)]
         reference_temperature : float
@@ -174,12 +174,25 @@ class SynthesisKinetics:
         molar_enthalpy : float
             Reaction enthalpy, negative when exothermic. [J/mol]
         first_order_reagent : {"A", "B"}
-            See the class documentation.
+            See the class documentation. [text]
 
         Returns
         -------
         SynthesisKinetics
-            Kinetics with the equivalent pre-exponential factor.
+            Kinetics with the equivalent pre-exponential factor. [object]
+
+        Examples
+        --------
+        k = 1e-3 1/s at 300 K and E = 50 kJ/mol; by hand, at 310 K
+        k = 1e-3 exp(E/R (1/300 - 1/310)) = 1e-3 exp(6013.618 * 1.075269e-4)
+          = 1e-3 exp(0.646626) = 1.90909e-3 1/s.
+
+        >>> kinetics = SynthesisKinetics.from_rate_constant(
+        ...     "first-order", 1e-3, 300.0, 50e3, -100e3)
+        >>> round(kinetics.rate_constant(310.0) * 1e3, 5)
+        1.90909
+        >>> round(kinetics.rate_constant(300.0) * 1e3, 9)
+        1.0
         """
         k_ref = require_positive(rate_constant, "rate_constant")
         t_ref = require_positive(reference_temperature, "reference_temperature")
@@ -357,7 +370,29 @@ class Feed:
         return tuple(sorted({t for piece in self.profile for t in piece[:2]}))
 
     def fraction_rate(self, time: float) -> float:
-        """Fraction of the total fed per second at ``time`` (right-continuous). [1/s]"""
+        """Fraction of the total fed per second at ``time`` (right-continuous).
+
+        Parameters
+        ----------
+        time : float
+            Time. [s]
+
+        Returns
+        -------
+        float
+            Sum of ``fraction / (end - start)`` over the pieces running at ``time``. [1/s]
+
+        Examples
+        --------
+        Constant dosing over 2 h from t = 0: 1/7200 s = 1.3889e-4 1/s while it runs; a quarter
+        is in after 1800 s (1800/7200 = 0.25).
+
+        >>> feed = Feed(moles_b=10.0, mass=1.0, feed_temperature=298.15, dosing_time=7200.0)
+        >>> round(feed.fraction_rate(100.0) * 1e4, 4), feed.fraction_rate(7200.0)
+        (1.3889, 0)
+        >>> feed.dosed_fraction(1800.0)
+        0.25
+        """
         return sum(
             fraction / (end - start) for start, end, fraction in self.profile if start <= time < end
         )
@@ -433,7 +468,22 @@ class DecompositionHeatSource(Protocol):
     energy: float
     initial_conversion: float
 
-    def heat_release_rate(self, temperature: float, conversion: float | None = None) -> float: ...
+    def heat_release_rate(self, temperature: float, conversion: float | None = None) -> float:
+        """Specific heat release rate of the decomposition.
+
+        Parameters
+        ----------
+        temperature : float
+            Temperature of the mass. [K]
+        conversion : float or None
+            Decomposition conversion a; ``None`` means the initial conversion. [-]
+
+        Returns
+        -------
+        float
+            q_dec per kg of reaction mass. [W/kg]
+        """
+        ...
 
 
 def _check_decomposition(decomposition) -> tuple[float, float]:
@@ -921,7 +971,18 @@ class NormalOperation:
         }
 
     def accumulated_moles(self, times) -> np.ndarray:
-        """n_acc(t) = max(min(n_A, n_B), 0): extent still possible with what is present. [mol]"""
+        """n_acc(t) = max(min(n_A, n_B), 0): extent still possible with what is present.
+
+        Parameters
+        ----------
+        times : float or array_like
+            Times within the simulated interval. [s]
+
+        Returns
+        -------
+        numpy.ndarray
+            Accumulated moles. [mol]
+        """
         state = self._trajectory(times)
         return np.maximum(np.minimum(state[_MOLES_A], state[_MOLES_B]), 0.0)
 
@@ -969,28 +1030,29 @@ def simulate_normal_operation(
     Parameters
     ----------
     kinetics : SynthesisKinetics
-        Desired reaction.
+        Desired reaction. [object]
     charge : ReactorCharge
-        Initial contents.
+        Initial contents. [object]
     cooling : Cooling
-        Jacket.
+        Jacket. [object]
     end_time : float
         End of the simulated normal operation; must cover the dosing. [s]
     feed : Feed, optional
-        Dosing of B; ``None`` or an empty feed is a batch run.
+        Dosing of B; ``None`` or an empty feed is a batch run. [object]
     decomposition : DecompositionHeatSource, optional
         Decomposition of the reaction mass (duck-typed, see :class:`DecompositionHeatSource`).
+        [object]
     output_points : int
         Number of evenly spaced output times (feed breakpoints are added). [-]
     method : {"LSODA", "Radau", "BDF"}
-        Stiff solver of ``solve_ivp``.
+        Stiff solver of ``solve_ivp``. [text]
     relative_tolerance : float
         ``rtol`` of the solver; ``atol`` is ``rtol/100`` times the scale of each variable. [-]
 
     Returns
     -------
     NormalOperation
-        Sampled trajectory plus the dense solution.
+        Sampled trajectory plus the dense solution. [object]
 
     Raises
     ------
@@ -1146,7 +1208,7 @@ def mtsr_profile(
     Parameters
     ----------
     normal : NormalOperation
-        Normal-operation trajectory.
+        Normal-operation trajectory. [object]
     times : array_like, optional
         Failure times; default the trajectory's output times. [s]
     adiabatic_rise_total : float, optional
@@ -1156,7 +1218,7 @@ def mtsr_profile(
     -------
     MtsrProfile
         X_ac(t), MTSR(t) with and without mass correction, end temperature with the feed
-        continuing.
+        continuing. [object]
     """
     times = normal.time if times is None else np.asarray(times, dtype=float)
     state = normal._trajectory(times)
@@ -1333,11 +1395,11 @@ def failure_continuation(
     Parameters
     ----------
     normal : NormalOperation
-        Normal-operation trajectory.
+        Normal-operation trajectory. [object]
     failure_time : float
         t_f, within the simulated normal operation. [s]
     feed_continues : bool
-        True: the feed runs on as planned; False: it stops at t_f.
+        True: the feed runs on as planned; False: it stops at t_f. [bool]
     maximum_technical_temperature : float
         MTT. [K]
     duration : float
@@ -1350,6 +1412,7 @@ def failure_continuation(
     -------
     FailureContinuation
         Temperature course, MTSR reached, time to MTT and to maximum rate, decomposition flag.
+        [object]
     """
     t_f = require_finite(failure_time, "failure_time")
     if t_f < normal.start_time or t_f > normal.end_time:
@@ -1662,13 +1725,13 @@ def worst_case_scan(
     Parameters
     ----------
     normal : NormalOperation
-        Normal-operation trajectory.
+        Normal-operation trajectory. [object]
     maximum_technical_temperature : float
         MTT. [K]
     n_initial : int
         Even sample count of the cheap MTSR(t) curve. [-]
     refine : bool
-        Refine the maximum of MTSR(t) (otherwise take the best sample).
+        Refine the maximum of MTSR(t) (otherwise take the best sample). [bool]
     n_failure_times : int
         Even failure times with a full continuation per feed mode. [-]
     scan_interval : (float, float), optional
@@ -1683,7 +1746,7 @@ def worst_case_scan(
     -------
     WorstCaseScan
         Worst failure time, maximum MTSR, X_ac profile, times to MTT and to maximum rate,
-        decomposition flag, and the per-mode continuation scans.
+        decomposition flag, and the per-mode continuation scans. [object]
     """
     if int(n_initial) < 3 or int(n_failure_times) < 2:
         raise ModelDomainError("n_initial must be >= 3 and n_failure_times >= 2", key="n_initial")
@@ -1848,7 +1911,7 @@ def dosing_warnings(
     Parameters
     ----------
     normal : NormalOperation
-        Normal-operation trajectory.
+        Normal-operation trajectory. [object]
     accumulation_limit : float
         Highest acceptable X_ac. [-]
     damkoehler_limit : float
@@ -1861,7 +1924,7 @@ def dosing_warnings(
     Returns
     -------
     DosingAssessment
-        Figures and warnings.
+        Figures and warnings. [object]
     """
     limit = require_non_negative(accumulation_limit, "accumulation_limit")
     da_limit = require_non_negative(damkoehler_limit, "damkoehler_limit")

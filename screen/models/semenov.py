@@ -262,6 +262,15 @@ def tangency_temperature_for_coolant(coolant_temperature, activation_energy):
     for ``E >= 4 R T_c``; the smaller root is the ignition tangency (the larger one lies near
     E/R, far above any physical temperature, where the Arrhenius curve flattens). The second form
     avoids cancellation for large E/(R T_c).
+
+    Examples
+    --------
+    T_c = 350 K, E = 100 kJ/mol, by hand: E/R = 12027.236 K, 4 R T_c/E = 1400/12027.236 =
+    0.1164025, sqrt(1 - 0.1164025) = 0.9399987, T* = (E/(2 R)) (1 - 0.9399987) = 6013.618 *
+    0.0600013 = 360.825 K. Check: R T*^2/E = 8.314462618 * 360.825^2 / 1e5 = 10.825 K = T* - T_c.
+
+    >>> round(tangency_temperature_for_coolant(350.0, 100e3), 3)
+    360.825
     """
     t_c = require_positive(coolant_temperature, "coolant_temperature")
     e = require_positive(activation_energy, "activation_energy")
@@ -296,6 +305,15 @@ def linearised_critical_temperature_difference(temperature, activation_energy):
     Semenov (1928); Williams (1985) app. B. Evaluated at T_c it underestimates the exact rise
     ``R T*^2/E`` because T* > T_c: with eps = R T_c/E, exact/linearised = 1 + 2 eps + O(eps^2)
     (derived from the series T*/T_c = 1 + eps + 2 eps^2 + ...).
+
+    Examples
+    --------
+    T = 350 K, E = 100 kJ/mol: 8.314462618 * 350^2 / 1e5 = 8.314462618 * 1.225 = 10.185 K
+    (against the exact 10.825 K of :func:`tangency_temperature_for_coolant`; 1 + 2 eps =
+    1 + 2 * 0.0291 = 1.058 predicts 10.78 K).
+
+    >>> round(linearised_critical_temperature_difference(350.0, 100e3), 3)
+    10.185
     """
     t = require_positive(temperature, "temperature")
     e = require_positive(activation_energy, "activation_energy")
@@ -535,6 +553,13 @@ def cooling_time_constant(mass, specific_heat, ua):
     float or numpy.ndarray
         ``tau = m c'p/(U A)``. [s] At the exact tangency temperature it equals the Townsend-Tou
         TMRad, ``c'p R T*^2/(q(T*) E)`` (derived from the tangency condition).
+
+    Examples
+    --------
+    5000 kg at 2000 J/(kg K) with U A = 2000 W/K: 5000 * 2000 / 2000 = 5000 s.
+
+    >>> cooling_time_constant(5000.0, 2000.0, 2000.0)
+    5000.0
     """
     return scalar_or_array(require_positive(mass, "mass") * require_positive(specific_heat, "specific_heat") / require_positive(ua, "ua"))
 
@@ -751,7 +776,7 @@ def coolant_temperature_sweep(mass, ua, coolant_temperatures, reference_rate, re
     CoolantSweep
         Arrays over the coolant temperatures (see :class:`CoolantSweep`). This array API marks a
         value that does not exist with NaN (no stable point, no T_NR, no tangency) and sets
-        ``subcritical`` False there; the scalar functions raise or return None instead.
+        ``subcritical`` False there; the scalar functions raise or return None instead. [object]
     """
     t_c = np.atleast_1d(require_positive(coolant_temperatures, "coolant_temperatures")).astype(float)
     critical = critical_point(mass, ua, reference_rate, reference_temperature, activation_energy)

@@ -11,6 +11,23 @@ data, like a table of constants, and never a user file.
 Names are matched without regard to case, spaces, hyphens and underscores ("2-MeTHF", "2 methf").
 CAS numbers are accepted with their check digit verified. Ambiguous names ("xylene", "butanol",
 "ether", "hexanes") are rejected with the list of candidates; nothing is guessed.
+
+Examples
+--------
+Water against the IAPWS-95 saturation values (W. Wagner, A. Pruss, "The IAPWS formulation 1995
+for the thermodynamic properties of ordinary water substance", J. Phys. Chem. Ref. Data 31
+(2002) 387-535; table values from memory): normal boiling point 373.124 K (99.974 degC),
+vapour pressure 3.1699 kPa at 25 degC, latent heat 2256.4 kJ/kg at 100 degC.
+
+>>> water = lookup_solvent("Water")
+>>> abs(boiling_temperature(water, 101325.0) - 373.124) < 0.1
+True
+>>> abs(vapour_pressure(water, 298.15) - 3169.9) < 5.0
+True
+>>> abs(latent_heat(water, 373.15) - 2256.4e3) < 1.0e3
+True
+>>> lookup_solvent("7732-18-5") is water
+True
 """
 
 from __future__ import annotations
@@ -201,7 +218,7 @@ def available_solvents() -> tuple[Solvent, ...]:
     Returns
     -------
     tuple of Solvent
-        The solvents; each carries its CAS number, name, aliases and sources.
+        The solvents; each carries its CAS number, name, aliases and sources. [object]
     """
     return _table()[0]
 
@@ -212,7 +229,7 @@ def accepted_names() -> str:
     Returns
     -------
     str
-        Text for error messages and ``--help`` style listings.
+        Text for error messages and ``--help`` style listings. [text]
     """
     return "\n".join(
         f"{solvent.name} ({solvent.cas})" + (f": {', '.join(solvent.aliases)}" if solvent.aliases else "")
@@ -227,14 +244,14 @@ def lookup_solvent(name_or_cas: str, key: str | None = None) -> Solvent:
     ----------
     name_or_cas : str
         A CAS number ("109-99-9") or a name or alias ("THF", "tetrahydrofuran"); matched without
-        regard to case, spaces, hyphens and underscores.
+        regard to case, spaces, hyphens and underscores. [text]
     key : str, optional
-        Case-file key path for the error message.
+        Case-file key path for the error message. [text]
 
     Returns
     -------
     Solvent
-        The table row.
+        The table row (properties in SI units). [object]
 
     Raises
     ------
@@ -311,7 +328,7 @@ def vapour_pressure(solvent: Solvent, temperature):
     Parameters
     ----------
     solvent : Solvent
-        The solvent.
+        The solvent. [object]
     temperature : float or array_like
         Temperature. [K]
 
@@ -341,7 +358,7 @@ def boiling_temperature(solvent: Solvent, pressure: float) -> float:
     Parameters
     ----------
     solvent : Solvent
-        The solvent.
+        The solvent. [object]
     pressure : float
         Absolute pressure. [Pa]
 
@@ -394,7 +411,7 @@ def latent_heat(solvent: Solvent, temperature):
     Parameters
     ----------
     solvent : Solvent
-        The solvent.
+        The solvent. [object]
     temperature : float or array_like
         Temperature, below the critical temperature. [K]
 

@@ -45,6 +45,22 @@ Volume to level z: ``V(z) = pi * integral_0^z r(s)^2 ds``; wetted area to level 
   with ``e = sqrt(1 - b^2/a^2)`` (standard result; e.g. Bronstein & Semendjajew).
 
 The shell adds ``pi D^2/4`` of volume and ``pi D`` of wall area per metre of height above the head.
+
+Examples
+--------
+D = 2 m, by hand. 2:1 elliptical head (a = 1 m, b = 0.5 m): volume pi D^3/24 = pi * 8/24 =
+1.047198 m^3; inside area from the oblate-spheroid formula, e = sqrt(1 - 0.25) = 0.866025,
+pi + (pi * 0.25/(2 * 0.866025)) ln(1.866025/0.133975) = 3.141593 + 0.453450 * 2.633916 =
+4.335941 m^2 (1.0840 D^2); depth b = 0.5 m, so a level of 1.5 m holds the head plus 1 m of shell,
+1.047198 + pi * 1^2 * 1 = 4.188790 m^3. Flat bottom filled with pi m^3: level 1 m, wetted area
+plate + wall = pi * 1^2 + pi * 2 * 1 = 9.424778 m^2.
+
+>>> round(head_volume(2.0, "elliptical"), 6), round(head_inner_area(2.0, "elliptical"), 6)
+(1.047198, 4.335941)
+>>> round(filled_volume(1.5, 2.0, "elliptical"), 6)
+4.18879
+>>> round(wetted_area(math.pi, 2.0, "flat"), 6)
+9.424778
 """
 
 from __future__ import annotations
@@ -226,7 +242,7 @@ def head_volume(diameter, bottom: str):
     bottom : str
         ``"flat"``, ``"torispherical"`` (R = D, r = 0.1 D), ``"torispherical-0.8"``
         (R = 0.8 D, r = 0.154 D), ``"torispherical-asme"`` (R = D, r = 0.06 D) or
-        ``"elliptical"`` (2:1).
+        ``"elliptical"`` (2:1). [text]
 
     Returns
     -------
@@ -253,7 +269,7 @@ def head_depth(diameter, bottom: str):
     diameter : float or array_like
         Inside diameter of the shell. [m]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
 
     Returns
     -------
@@ -275,13 +291,13 @@ def head_inner_area(diameter, bottom: str):
     diameter : float or array_like
         Inside diameter of the shell. [m]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
 
     Returns
     -------
     float or numpy.ndarray
         Head area. [m^2] Elliptical 2:1: half the oblate-spheroid surface,
-        ``pi a^2 + (pi b^2/(2 e)) ln((1 + e)/(1 - e))`` = 1.0842 D^2; torispherical (R = D,
+        ``pi a^2 + (pi b^2/(2 e)) ln((1 + e)/(1 - e))`` = 1.0840 D^2; torispherical (R = D,
         r = 0.1 D): ``2 pi R z1 + 2 pi r (c theta1 + r sin theta1)`` = 0.9899 D^2; flat:
         ``pi D^2/4``.
     """
@@ -300,7 +316,7 @@ def filled_volume(liquid_level, diameter, bottom: str):
     diameter : float or array_like
         Inside diameter of the shell. [m]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
 
     Returns
     -------
@@ -325,7 +341,7 @@ def liquid_height(fill_volume, diameter, bottom: str):
     diameter : float or array_like
         Inside diameter of the shell. [m]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
 
     Returns
     -------
@@ -388,7 +404,7 @@ def wetted_area(fill_volume, diameter, bottom: str, jacket_height=None, vessel_v
     diameter : float or array_like
         Inside diameter of the shell. [m]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
     jacket_height : float or array_like, optional
         Height of the top of the jacket above the lowest inside point (the same datum as the
         liquid level); the jacket is assumed to cover the whole wall below it, bottom included.
@@ -429,7 +445,7 @@ def cylinder_height_for_volume(volume, diameter, bottom: str):
     diameter : float or array_like
         Inside diameter of the shell. [m]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
 
     Returns
     -------
@@ -460,7 +476,7 @@ def similar_vessel(volume, aspect_ratio, bottom: str):
     aspect_ratio : float or array_like
         Straight-side height over diameter, ``H/D``, held fixed across the family. [-]
     bottom : str
-        Bottom shape, see :data:`BOTTOM_SHAPES`.
+        Bottom shape, see :data:`BOTTOM_SHAPES`. [text]
 
     Returns
     -------
