@@ -324,6 +324,7 @@ def find_exotherm(temperature, rate, threshold=DEFAULT_THRESHOLD, rebound=1.5,
     Returns
     -------
     Exotherm
+        Indices of onset, maximum rate and maximum temperature (see the class). [object]
 
     Raises
     ------
@@ -493,6 +494,7 @@ def fit_self_heat_rate(temperature, rate, onset_temperature, total_rise, initial
     Returns
     -------
     SelfHeatFit
+        Fitted Arrhenius parameters and order (see the class). [object]
 
     Raises
     ------

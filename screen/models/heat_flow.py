@@ -270,7 +270,7 @@ def dosing_interval(dosed_mass, fraction=2e-3):
     -------
     tuple of int or None
         (first index above ``fraction`` of the total, first index within ``fraction`` of the
-        total); None when nothing is dosed.
+        total); None when nothing is dosed. [-]
     """
     m = np.asarray(dosed_mass, dtype=float) - float(dosed_mass[0])
     total = float(m[-1])
