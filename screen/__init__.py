@@ -56,8 +56,9 @@ def screen_portfolio(paths, executor=None, workers=None, overrides=None, **optio
                                 overrides=overrides, **options)
 
 
-def uncertainty(case, samples=20_000, seed=20261201, overrides=None):
+def uncertainty(case, samples=20_000, seed=20261201, overrides=None, executor=None):
     """Monte Carlo propagation; see :func:`screen.api.uncertainty`."""
     from screen import api
 
-    return api.uncertainty(case, samples=samples, seed=seed, overrides=overrides)
+    return api.uncertainty(case, samples=samples, seed=seed, overrides=overrides,
+                           executor=executor)

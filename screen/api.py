@@ -357,8 +357,8 @@ def screen_portfolio(paths, executor=None, workers=None, overrides=None, **optio
     return with_attrs(frame)
 
 
-def uncertainty(case, samples: int = 20_000, seed: int = 20261201, overrides=None
-                ) -> Uncertainty:
+def uncertainty(case, samples: int = 20_000, seed: int = 20261201, overrides=None,
+                executor=None) -> Uncertainty:
     """Monte Carlo propagation of the uncertainties the case gives ("135 ± 8 kJ/mol" or an
     ``[uncertainty]`` section).
 
@@ -372,6 +372,9 @@ def uncertainty(case, samples: int = 20_000, seed: int = 20261201, overrides=Non
         Seed of the random generator (the same seed gives the same numbers). [-]
     overrides : mapping, optional
         With a path: what-if values (see :func:`load_case`).
+    executor : object, optional
+        Evaluate the blocks of 10,000 samples there, e.g. on a cluster with a
+        ``distributed.Client``; the samples are drawn here, so the numbers are the same.
 
     Returns
     -------
@@ -381,5 +384,5 @@ def uncertainty(case, samples: int = 20_000, seed: int = 20261201, overrides=Non
     from screen.runs.uncertainty import add_uncertainty
 
     result = screen_case(case, overrides)
-    block = add_uncertainty(result, samples=samples, seed=seed)
+    block = add_uncertainty(result, samples=samples, seed=seed, executor=executor)
     return Uncertainty(result, block)

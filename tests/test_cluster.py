@@ -80,3 +80,16 @@ def test_python_api_with_a_client_equals_the_local_pool(portfolio, cluster, loca
     assert len(remote) == 1 + 1 + 1 + 3  # broken, two cases with one vessel, one with three
     pd.testing.assert_frame_equal(remote, local, check_exact=True)
     assert remote.attrs["cautions"] == local.attrs["cautions"]
+
+
+def test_monte_carlo_blocks_on_the_cluster_equal_the_local_run(cluster):
+    """The blocks of samples run on the workers; the samples are drawn by the caller, so the
+    block is the same number for number."""
+    import screen
+
+    path = os.path.join(ROOT, "cases", "esterification_uncertain.toml")
+    local = screen.uncertainty(path, samples=25_000, seed=9)
+    with distributed.Client(cluster) as client:
+        remote = screen.uncertainty(path, samples=25_000, seed=9, executor=client)
+    assert json.dumps(remote.to_json_dict(), default=float) == \
+        json.dumps(local.to_json_dict(), default=float)

@@ -57,14 +57,15 @@ KEY_FIGURES = (
     ("Probability", "probability_6", "", ""),
 )
 
-#: Vessel columns of the HTML view: header, JSON key of the vessel entry, format.
+#: Vessel columns of the HTML view: header, JSON keys of the vessel entry (the first present
+#: is shown: the verdict words where the engine gives them), format.
 VESSEL_COLUMNS = (
-    ("Vessel", "name", ""),
-    ("Heat balance", "stability", ""),
-    ("Critical T<sub>c</sub> [°C]", "critical_coolant_temperature_degC", ".1f"),
-    ("T<sub>NR</sub> [°C]", "no_return_temperature_degC", ".1f"),
-    ("MTSR above T<sub>NR</sub>", "mtsr_above_no_return", ""),
-    ("Synthesis cooling", "synthesis_stability", ""),
+    ("Vessel", ("name",), ""),
+    ("Decomposition", ("decomposition_stability", "stability"), ""),
+    ("Critical T<sub>c</sub> [°C]", ("critical_coolant_temperature_degC",), ".1f"),
+    ("T<sub>NR</sub> [°C]", ("no_return_temperature_degC",), ".1f"),
+    ("MTSR above T<sub>NR</sub>", ("mtsr_above_no_return",), ""),
+    ("Synthesis cooling", ("synthesis_cooling", "synthesis_stability"), ""),
 )
 
 
@@ -92,8 +93,8 @@ def html(data: dict) -> str:
                                                      VESSEL_COLUMNS) + "</tr></thead><tbody>")
         for vessel in vessels:
             cells = []
-            for _, key, digits in VESSEL_COLUMNS:
-                value = vessel.get(key)
+            for _, keys, digits in VESSEL_COLUMNS:
+                value = next((vessel[key] for key in keys if key in vessel), None)
                 if isinstance(value, bool):
                     value = "yes" if value else "no"
                 shown = _number(value, digits) if digits else ("n/a" if value is None else value)

@@ -771,7 +771,7 @@ class MonteCarloRun:
 
 
 def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = False,
-                    chunk: int = CHUNK_SAMPLES) -> MonteCarloRun:
+                    chunk: int = CHUNK_SAMPLES, executor=None) -> MonteCarloRun:
     """Draw the uncertain inputs and evaluate the figures for every sample.
 
     Parameters
@@ -789,6 +789,11 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
         called as ``progress(samples done, samples)`` after each block.
     chunk : int
         Samples evaluated per block (does not change the numbers). [-]
+    executor : object, optional
+        Evaluate the blocks there: anything with ``submit(function, *args)`` returning futures
+        with ``result()`` (a ``dask.distributed.Client``, a :mod:`concurrent.futures`
+        executor). The samples are drawn here, so the numbers do not depend on where the blocks
+        run. Default: one after the other in this process.
 
     Returns
     -------
@@ -824,19 +829,37 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
 
     # A callable receives (samples done, samples); True draws a bar on a terminal.
     callback = progress if callable(progress) else None
+    blocks = []
+    for start in starts:
+        stop = min(samples, start + int(chunk))
+        merged = dict(base)
+        for key, array in input_values.items():
+            merged[key] = array[start:stop]
+        blocks.append((stop, merged))
     with ProgressBar(samples, "Monte Carlo", enabled=progress is True, unit="samples") as bar:
-        for start in starts:
-            stop = min(samples, start + int(chunk))
-            merged = dict(base)
-            for key, array in input_values.items():
-                merged[key] = array[start:stop]
-            pieces.append(_compose(merged, context, stop - start, crit, dm))
+        if executor is not None:  # all blocks submitted at once, collected in order
+            pending = [executor.submit(compose_block, merged, context, stop - start)
+                       for (stop, merged), start in zip(blocks, starts, strict=True)]
+        for index, ((stop, merged), start) in enumerate(zip(blocks, starts, strict=True)):
+            if executor is None:
+                pieces.append(_compose(merged, context, stop - start, crit, dm))
+            else:
+                pieces.append(pending[index].result())
             bar.update(stop)
             if callback is not None:
                 callback(stop, samples)
     figures = {key: np.concatenate([piece[key] for piece in pieces]) for key in pieces[0]}
     return MonteCarloRun(samples, seed, inputs, correlation, not_propagated, input_values,
                          input_by_key, figures)
+
+
+def compose_block(values, context, size: int) -> dict:
+    """The figures of one block of samples (a top-level function, so that a worker process or
+    a cluster can run it); see :func:`run_monte_carlo`."""
+    from screen.models import criticality as crit
+    from screen.models import decomposition as dm
+
+    return _compose(values, context, size, crit, dm)
 
 
 def _check_nominal(case, results, context, base, crit, dm) -> None:
@@ -867,7 +890,7 @@ def _check_nominal(case, results, context, base, crit, dm) -> None:
 
 
 def add_uncertainty(result, samples: int = 20_000, seed: int = 20261201,
-                    progress: bool = False) -> dict:
+                    progress: bool = False, executor=None) -> dict:
     """Propagate the uncertainties of a case and add ``results["uncertainty"]``.
 
     Also appends the confidence to ``results["verdict"]``, warnings to ``result.warnings``,
@@ -885,6 +908,8 @@ def add_uncertainty(result, samples: int = 20_000, seed: int = 20261201,
     progress : bool or callable
         True: a progress bar on stderr when it is a terminal (silent otherwise); a callable is
         called as ``progress(samples done, samples)`` after each block.
+    executor : object, optional
+        Where the blocks of samples are evaluated (see :func:`run_monte_carlo`).
 
     Returns
     -------
@@ -900,7 +925,7 @@ def add_uncertainty(result, samples: int = 20_000, seed: int = 20261201,
         The vectorised figures do not reproduce the nominal screening.
     """
     case, results = result.case, result.results
-    run = run_monte_carlo(case, results, samples, seed, progress=progress)
+    run = run_monte_carlo(case, results, samples, seed, progress=progress, executor=executor)
     block, warnings = summarise(run, case, results)
     results["uncertainty"] = block
     results["verdict"] = f"{results['verdict']} {block['confidence']}"
