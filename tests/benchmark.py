@@ -58,6 +58,10 @@ def command_line(repeat):
     imports = wall([sys.executable, "-c", "import numpy, scipy.integrate, scipy.optimize, pint"],
                    repeat)
     rows.append(("bare import numpy, scipy.integrate, scipy.optimize, pint", imports, ""))
+    rows.append(("python -c pass (interpreter start-up)", wall([sys.executable, "-c", "pass"],
+                                                                 repeat), ""))
+    rows.append(("python -c 'import screen'", wall([sys.executable, "-c", "import screen"],
+                                                    repeat), "numpy, scipy load on first use"))
     rows.append(("runaway-screen --help", wall(CLI + ["--help"], repeat), ""))
     check = wall(CLI + ["check", CASE, "--json"], repeat)
 

@@ -261,3 +261,13 @@ def test_figure_without_matplotlib_is_one_line_import_error(tmp_path):
     assert completed.returncode == 0, completed.stderr
     message = completed.stdout.strip()
     assert "\n" not in message and "runaway-screen[plot]" in message
+
+
+def test_command_group_loads_no_heavy_module():
+    """``runaway-screen --help`` imports click and the command modules only."""
+    code = ("import sys, screen.cli.main; heavy = ('numpy', 'scipy', 'pandas', 'pint', "
+            "'matplotlib', 'reportlab', 'dask'); "
+            "print(','.join(m for m in heavy if m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         cwd=ROOT, check=True)
+    assert out.stdout.strip() == ""
