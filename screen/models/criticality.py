@@ -156,14 +156,15 @@ def severity_with_pressure(adiabatic_rise, levels: int = 4, pressure_increase: b
     adiabatic_rise : float
         Final temperature minus process temperature. [K]
     levels : {3, 4}
-        As :func:`severity_level`.
+        As :func:`severity_level`. [-]
     pressure_increase : bool
         The runaway raises the pressure (gas yield given, or final temperature above the boiling
-        point at the operating pressure).
+        point at the operating pressure). [bool]
 
     Returns
     -------
     str
+        Severity word, one of SEVERITY_4_LEVELS or SEVERITY_3_LEVELS. [text]
 
     Examples
     --------

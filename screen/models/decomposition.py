@@ -955,7 +955,7 @@ def townsend_tou_equivalent(kinetics):
     Parameters
     ----------
     kinetics : DecompositionKinetics
-        Scalar decomposition kinetics.
+        Scalar decomposition kinetics. [object]
 
     Returns
     -------

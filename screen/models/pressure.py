@@ -321,7 +321,7 @@ def pressure_limit_temperature(
     set_pressure : float
         Relief set pressure, absolute. [Pa]
     solvent : Solvent or None
-        The volatile solvent (None: no vapour counted).
+        The volatile solvent (None: no vapour counted). [object]
     closing_pressure : float
         Absolute pressure when the vessel was closed (the operating pressure). [Pa]
     closing_temperature : float
