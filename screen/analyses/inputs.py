@@ -22,6 +22,11 @@ def decomposition_kinetics(case):
     """Build the decomposition kinetics object from the case (SI).
 
     Returns (kinetics, basis) where basis is ``"kinetics"`` or ``"onset-estimate"``.
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case; reads the ``decomposition`` section (SI quantities).
     """
     from screen.models.decomposition import DecompositionKinetics
 
@@ -57,13 +62,27 @@ def _characteristic_temperatures(key, cp):
 
 def characteristic_temperatures(kinetics, cp) -> tuple[float, float]:
     """(TD24, TD8) [K] of scalar kinetics, cached: sweeps of vessel or process inputs do not
-    change them, and each costs a root search."""
+    change them, and each costs a root search.
+
+    Parameters
+    ----------
+    kinetics : DecompositionKinetics
+        Scalar decomposition kinetics.
+    cp : float
+        Specific heat capacity c'p of the reaction mass. [J/(kg K)]
+    """
     key = _kinetics_key(kinetics)
     return _characteristic_temperatures(key, float(cp))
 
 
 def synthesis_specific_energy(case) -> float:
-    """Heat of the desired reaction per kg of final mass [J/kg]."""
+    """Heat of the desired reaction per kg of final mass [J/kg].
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case; reads ``synthesis`` and ``mass``.
+    """
     syn = case.sections["synthesis"]
     if syn.energy is not None:
         return float(syn.energy)
@@ -149,6 +168,11 @@ def accumulation_mass_ratio(case) -> tuple[float, str]:
     accumulation cannot occur in less mass than was charged before dosing, and the smallest
     ratio gives the highest MTSR (fail closed; derived). The case loader refuses a semi-batch
     case that has neither.
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case; reads ``process``, ``synthesis_kinetics`` and ``mass``.
 
     Returns
     -------

@@ -566,7 +566,13 @@ def _model_summary(result):
 
 def lowest_measured_temperature(result):
     """Lowest temperature with measured heat release [K]: first exceedance of the detection
-    limit or extrapolated onset of any run; without them the lowest peak temperature."""
+    limit or extrapolated onset of any run; without them the lowest peak temperature.
+
+    Parameters
+    ----------
+    result : KineticsAnalysis
+        Result of :func:`analyse_kinetics` (temperatures in K).
+    """
     measured = [t for r in result.runs for t in (r.detection_temperature, r.onset_temperature)
                 if t is not None]
     if not measured:

@@ -39,6 +39,24 @@ def worst_class_over_mtt_range(t_p, mtsr, td24, mtt_low, mtt_high) -> int:
     The class is piecewise constant in the MTT with steps at MTSR and TD24 (Stoessel 1993
     table), so its maximum over the interval is among the ends and those two points (derived).
     ``mtt_high`` may be ``inf`` (no technical limit).
+
+    Parameters
+    ----------
+    t_p : float
+        Process temperature. [K]
+    mtsr : float
+        Maximum temperature of the synthesis reaction. [K]
+    td24 : float
+        Temperature at which TMRad is 24 h. [K]
+    mtt_low : float
+        Lowest possible maximum technical temperature. [K]
+    mtt_high : float
+        Highest possible maximum technical temperature; ``inf`` when no limit is known. [K]
+
+    Returns
+    -------
+    int
+        Criticality class 1..5. [-]
     """
     candidates = [mtt_low, mtt_high] + [t for t in (mtsr, td24) if mtt_low <= t <= mtt_high]
     return max(int(crit.criticality_class(t_p, mtsr, _finite_mtt(t), td24)) for t in candidates)
@@ -51,6 +69,17 @@ def _finite_mtt(mtt):
 
 def vessel_mtt(case, vessel, prefix, case_mtt) -> dict[str, Any]:
     """MTT of one vessel: the case MTT, or for a closed vessel the set-pressure temperature.
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case (SI quantities).
+    vessel : Vessel
+        The vessel section of the case (closed flag, relief set pressure).
+    prefix : str
+        Case-file key path of the vessel, for messages (``vessel`` or ``vessel.0``).
+    case_mtt : float
+        MTT of the case (given or boiling point). [K]
 
     Returns
     -------

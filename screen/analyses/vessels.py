@@ -36,7 +36,17 @@ def _wetted_geometry(fill_volume, diameter, bottom, jacket_height, vessel_volume
 
 
 def vessel_geometry(case, vessel, prefix):
-    """Fill volume [m^3], wetted area [m^2], fill fraction, warnings for one vessel."""
+    """Fill volume [m^3], wetted area [m^2], fill fraction, warnings for one vessel.
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case; reads ``mass`` (amount [kg], density [kg/m^3]).
+    vessel : Vessel
+        The vessel section of the case (geometry in SI units).
+    prefix : str
+        Case-file key path of the vessel, for warnings (``vessel`` or ``vessel.0``).
+    """
 
     warnings = []
     mass = vessel.batch_mass or case.sections["mass"].amount
@@ -343,7 +353,13 @@ def _synthesis_check(case, vessel, mass, ua, t_p, t_c, q_syn, rise_syn, cp, seme
 
 
 def result_basis_is_crude(case) -> bool:
-    """True when the decomposition rests on the onset-only estimate (no kinetics)."""
+    """True when the decomposition rests on the onset-only estimate (no kinetics).
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case; reads ``decomposition.model``.
+    """
     return case.sections["decomposition"].model is None
 
 

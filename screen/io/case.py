@@ -50,11 +50,26 @@ class Section:
         raise AttributeError("case sections are read-only")
 
     def get(self, key, default=None):
+        """Value of ``key`` in SI units, or ``default`` when absent or None.
+
+        Parameters
+        ----------
+        key : str
+            Field name within the section.
+        default : object, optional
+            Returned when the key is absent or None.
+        """
         value = self._values.get(key)
         return default if value is None else value
 
     def given(self, key) -> bool:
-        """True when the key was present in the file (or set by an override)."""
+        """True when the key was present in the file (or set by an override).
+
+        Parameters
+        ----------
+        key : str
+            Field name within the section.
+        """
         return key in self._values
 
     def as_dict(self) -> dict[str, Any]:
@@ -107,7 +122,13 @@ class Case:
 
 
 def read_case_text(path: str) -> tuple[dict, str]:
-    """Read and TOML-decode a case file. Returns (data, sha256 of the bytes)."""
+    """Read and TOML-decode a case file. Returns (data, sha256 of the bytes).
+
+    Parameters
+    ----------
+    path : str
+        Path of the TOML case file.
+    """
     import tomllib
 
     if not os.path.exists(path):
@@ -310,7 +331,19 @@ def _override_items(overrides) -> list[tuple]:
 def parse_field_quantity(spec: Field, raw_value, key: str, path: str | None = None
                          ) -> ParsedQuantity:
     """Parse the value of a numeric field (kind ``"number"``, ``"rate_constant"`` or a quantity
-    kind of :data:`screen.units.DIMENSIONS`) into SI; bounds are not checked here."""
+    kind of :data:`screen.units.DIMENSIONS`) into SI; bounds are not checked here.
+
+    Parameters
+    ----------
+    spec : Field
+        Schema entry of the field (kind, accepted units).
+    raw_value : str or float
+        Value as read from the file or an override, with its unit.
+    key : str
+        Case-file key path, for the error message.
+    path : str or None
+        Case-file path, for the error message.
+    """
     if spec.kind == "number":
         return parse_dimensionless(raw_value, key, path)
     if spec.kind == "rate_constant":
@@ -371,7 +404,19 @@ def _validate_value(name: str, spec: Field, raw_value, key: str, path: str,
 
 
 def check_temperature_range(value: float, shown: str, key: str, path: str | None) -> None:
-    """Raise CaseError unless an absolute temperature [K] lies in :data:`TEMPERATURE_RANGE_K`."""
+    """Raise CaseError unless an absolute temperature [K] lies in :data:`TEMPERATURE_RANGE_K`.
+
+    Parameters
+    ----------
+    value : float
+        Absolute temperature. [K]
+    shown : str
+        The value as written in the case, for the error message.
+    key : str
+        Case-file key path, for the error message.
+    path : str or None
+        Case-file path, for the error message.
+    """
     low, high = TEMPERATURE_RANGE_K
     if not (math.isfinite(value) and low <= value <= high):
         raise CaseError(
@@ -445,7 +490,19 @@ def load_case(path, overrides=None) -> Case:
 
 
 def build_case(raw: dict, path: str = "<memory>", sha256: str = "", overrides=()) -> Case:
-    """Validate an already decoded case dictionary (see :func:`load_case`)."""
+    """Validate an already decoded case dictionary (see :func:`load_case`).
+
+    Parameters
+    ----------
+    raw : dict
+        Decoded TOML tables of the case.
+    path : str
+        Case-file path (for messages and the result).
+    sha256 : str
+        SHA-256 of the file bytes, carried into the result.
+    overrides : mapping or iterable of str
+        What-if overrides, as in :func:`load_case`.
+    """
     inputs: list[InputRecord] = []
     uncertainties: dict[str, ParsedQuantity] = {}
     warnings: list[str] = []

@@ -9,7 +9,15 @@ from screen.errors import OutputError
 
 
 def check_writable(path, force: bool = False) -> None:
-    """Raise OutputError if ``path`` exists (without force) or its directory is missing."""
+    """Raise OutputError if ``path`` exists (without force) or its directory is missing.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        Output file.
+    force : bool
+        Allow overwriting an existing file.
+    """
     path = os.fspath(path)
     if os.path.isdir(path):
         raise OutputError("is a directory; give a file name", path=path)
@@ -26,7 +34,17 @@ def check_writable(path, force: bool = False) -> None:
 
 
 def write_atomic(path, data: bytes, force: bool = False) -> None:
-    """Write ``data`` to ``path`` through a temporary file and a rename (no half-written file)."""
+    """Write ``data`` to ``path`` through a temporary file and a rename (no half-written file).
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        Output file.
+    data : bytes
+        Complete file content.
+    force : bool
+        Allow overwriting an existing file.
+    """
     path = os.fspath(path)
     check_writable(path, force)
     directory = os.path.dirname(os.path.abspath(path))

@@ -18,6 +18,11 @@ def _reject_constant(name):
 def read_result_json(path) -> dict:
     """An earlier ``check --json`` output, checked for the members :mod:`screen.runs.compare` uses.
 
+    Parameters
+    ----------
+    path : str or os.PathLike
+        JSON file written by ``runaway-screen check --json``.
+
     Raises
     ------
     DataFileError

@@ -507,6 +507,18 @@ class Marginal:
         return values
 
     def describe(self, unit: str) -> str:
+        """One-line description of the distribution for reports.
+
+        Parameters
+        ----------
+        unit : str
+            Display unit appended to the parameters (they are shown as stored, SI).
+
+        Returns
+        -------
+        str
+            E.g. ``"normal, mean 1.2e+05 J/mol, standard deviation 5000 J/mol"``.
+        """
         p = self.parameters
         if self.kind == "normal":
             return f"normal, mean {p[0]:.6g} {unit}, standard deviation {p[1]:.4g} {unit}"

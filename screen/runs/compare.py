@@ -38,7 +38,15 @@ class Change:
 
 
 def flatten_results(results: dict, prefix: str = "") -> dict[str, object]:
-    """Flatten nested results; list items with a ``name`` are keyed by it (``vessels[R-301].x``)."""
+    """Flatten nested results; list items with a ``name`` are keyed by it (``vessels[R-301].x``).
+
+    Parameters
+    ----------
+    results : dict
+        Nested ``results`` table of a JSON-ready screening result.
+    prefix : str
+        Key path of ``results`` itself; '' at the top.
+    """
     flat: dict[str, object] = {}
     for key, value in results.items():
         path = f"{prefix}.{key}" if prefix else key
@@ -82,7 +90,17 @@ _SKIP_RESULT_KEYS = ("verdict", "criticality_meaning", "summary_lines", "dsc_ons
 
 
 def diff_dicts(old: dict, new: dict, skip=()) -> list[Change]:
-    """Changes between two flat or nested dicts, verdict changes first."""
+    """Changes between two flat or nested dicts, verdict changes first.
+
+    Parameters
+    ----------
+    old : dict
+        Earlier results (flat or nested).
+    new : dict
+        Later results (flat or nested).
+    skip : iterable of str
+        Keys (leaf names or path parts) left out of the comparison.
+    """
     flat_old, flat_new = flatten_results(old), flatten_results(new)
     changes = []
     for key in list(flat_old) + [k for k in flat_new if k not in flat_old]:
@@ -103,7 +121,15 @@ def diff_dicts(old: dict, new: dict, skip=()) -> list[Change]:
 
 
 def diff_inputs(old: dict, new: dict) -> list[Change]:
-    """Changed inputs between two JSON results (by key path, compared in SI)."""
+    """Changed inputs between two JSON results (by key path, compared in SI).
+
+    Parameters
+    ----------
+    old : dict
+        Earlier JSON-ready result (its ``inputs`` rows, values in SI).
+    new : dict
+        Later JSON-ready result.
+    """
     def table(data):
         return {row["key"]: row for row in data.get("inputs", [])}
 
@@ -123,6 +149,14 @@ def diff_inputs(old: dict, new: dict) -> list[Change]:
 
 
 def diff_results(old: dict, new: dict) -> tuple[list[Change], list[Change]]:
-    """(input changes, result changes) between two JSON-ready screening results."""
+    """(input changes, result changes) between two JSON-ready screening results.
+
+    Parameters
+    ----------
+    old : dict
+        Earlier JSON-ready screening result.
+    new : dict
+        Later JSON-ready screening result.
+    """
     return diff_inputs(old, new), diff_dicts(old.get("results", {}), new.get("results", {}),
                                              skip=_SKIP_RESULT_KEYS)

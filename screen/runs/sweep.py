@@ -44,7 +44,15 @@ class Variation:
 
 
 def parse_vary(spec: str, case: Case) -> Variation:
-    """Parse ``KEY=START:STOP:STEPS`` (e.g. ``vessel.coolant_temperature=0 degC:40 degC:41``)."""
+    """Parse ``KEY=START:STOP:STEPS`` (e.g. ``vessel.coolant_temperature=0 degC:40 degC:41``).
+
+    Parameters
+    ----------
+    spec : str
+        ``KEY=START:STOP:STEPS``; START and STOP with their unit, STEPS a count.
+    case : Case
+        The validated case; the key must name one of its numeric inputs.
+    """
     if "=" not in spec:
         raise CaseError(f"--vary {spec!r}: expected KEY=START:STOP:STEPS", key="--vary")
     key, rng = (p.strip() for p in spec.split("=", 1))
@@ -116,6 +124,15 @@ def case_with_value(case: Case, key: str, value: float) -> Case:
     """A copy of ``case`` with one value replaced (SI), range-checked and cross-checked again.
 
     ``key`` is ``SECTION.KEY``, ``vessel.KEY`` (every vessel) or ``vessel.N.KEY`` (1-based).
+
+    Parameters
+    ----------
+    case : Case
+        The validated case (SI values).
+    key : str
+        ``SECTION.KEY``, ``vessel.KEY`` or ``vessel.N.KEY``.
+    value : float
+        New value in the SI unit of the key (e.g. [K] for a temperature).
     """
     parts = key.split(".")
     section, name = parts[0], parts[-1]
@@ -144,6 +161,13 @@ def evaluate_point(case: Case, assignments) -> dict:
     """Screen the case with ``assignments`` [(key, SI value)]; a flat row of figures.
 
     An input error at a point (e.g. T_p above MTT) is recorded in the row, not raised.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case (SI values).
+    assignments : list of (str, float)
+        Key paths and new values in the SI unit of each key.
     """
     from screen.analyses.engine import screen_case
 
@@ -225,7 +249,32 @@ def _verdicts(row):
 
 
 def locate_flips(case, key, low, high, fixed=(), rel_tol=1e-9, max_iter=80, max_flips=8):
-    """All verdict changes between two grid points (several can fall between neighbours)."""
+    """All verdict changes between two grid points (several can fall between neighbours).
+
+    Parameters
+    ----------
+    case : Case
+        The validated case (SI values).
+    key : str
+        Varied key path.
+    low : float
+        Lower grid value, SI unit of the key.
+    high : float
+        Upper grid value, SI unit of the key.
+    fixed : sequence of (str, float)
+        Other assignments held fixed (SI).
+    rel_tol : float
+        Relative width of the bracket that ends a bisection. [-]
+    max_iter : int
+        Largest number of bisection steps per flip. [-]
+    max_flips : int
+        Largest number of flips searched between the two points. [-]
+
+    Returns
+    -------
+    list of (float, dict, dict)
+        Per flip: the value (SI) and the verdicts below and above it.
+    """
     target = _verdict_signature(evaluate_point(case, list(fixed) + [(key, high)]))
     found = []
     start = low
@@ -281,7 +330,22 @@ def run_sweep(case: Case, variations: list[Variation], progress=None):
 
 
 def to_display(value: float, unit: str, kind: str):
-    """SI value to the display unit used in tables (degC for temperatures, h for times)."""
+    """SI value to the display unit used in tables (degC for temperatures, h for times).
+
+    Parameters
+    ----------
+    value : float
+        Value in SI (K for a temperature, s for a time).
+    unit : str
+        SI unit of the value, returned unchanged for other kinds.
+    kind : str
+        Schema kind of the key (``"temperature"``, ``"time"``, ...).
+
+    Returns
+    -------
+    tuple of (float, str)
+        Display value and its unit (degC, h or ``unit``).
+    """
     if kind == "temperature":
         return value - ZERO_CELSIUS, "degC"
     if kind == "time":

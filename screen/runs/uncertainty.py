@@ -855,7 +855,17 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
 
 def compose_block(values, context, size: int) -> dict:
     """The figures of one block of samples (a top-level function, so that a worker process or
-    a cluster can run it); see :func:`run_monte_carlo`."""
+    a cluster can run it); see :func:`run_monte_carlo`.
+
+    Parameters
+    ----------
+    values : dict of str to numpy.ndarray
+        Sampled inputs by key path, in SI units.
+    context : object
+        Fixed figures of the case shared by all blocks (built once per run).
+    size : int
+        Number of samples in the block.
+    """
     from screen.models import criticality as crit
     from screen.models import decomposition as dm
 
@@ -947,7 +957,17 @@ def add_uncertainty(result, samples: int = 20_000, seed: int = 20261201,
 
 
 def summarise(run: MonteCarloRun, case, results):
-    """The JSON block and the warnings of a Monte Carlo run (see :func:`add_uncertainty`)."""
+    """The JSON block and the warnings of a Monte Carlo run (see :func:`add_uncertainty`).
+
+    Parameters
+    ----------
+    run : MonteCarloRun
+        Finished Monte Carlo run.
+    case : Case
+        The validated case (SI values).
+    results : dict
+        Nominal results of the screening, for comparison with the samples.
+    """
     from screen.models import criticality as crit
 
     n = run.samples
