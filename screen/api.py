@@ -32,7 +32,13 @@ class Screening(ScreeningResult):
 
     @classmethod
     def of(cls, result: ScreeningResult) -> Screening:
-        """The same result (shared, not copied) as a :class:`Screening`."""
+        """The same result (shared, not copied) as a :class:`Screening`.
+
+        Parameters
+        ----------
+        result : ScreeningResult
+            Result of the engine.
+        """
         if isinstance(result, cls):
             return result
         view = cls.__new__(cls)
@@ -144,7 +150,13 @@ class Uncertainty:
         return self.block
 
     def figure(self, name: str = "sensitivity"):
-        """The sensitivity ranking of the PDF as a matplotlib Figure."""
+        """The sensitivity ranking of the PDF as a matplotlib Figure.
+
+        Parameters
+        ----------
+        name : str
+            Figure name; ``"sensitivity"`` (the only one).
+        """
         return self.result.figure(name)
 
     def __repr__(self) -> str:

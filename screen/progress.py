@@ -24,7 +24,13 @@ REDRAW_SECONDS = 0.1
 
 
 def is_terminal(stream) -> bool:
-    """True when ``stream`` is an interactive terminal (not a pipe, file or dumb terminal)."""
+    """True when ``stream`` is an interactive terminal (not a pipe, file or dumb terminal).
+
+    Parameters
+    ----------
+    stream : file-like
+        Output stream, e.g. ``sys.stderr``.
+    """
     try:
         interactive = bool(stream.isatty())
     except (AttributeError, ValueError, OSError):
@@ -76,11 +82,23 @@ class ProgressBar:
     # counting -------------------------------------------------------------------------------
 
     def advance(self, items: int = 1) -> None:
-        """Count ``items`` more completed items."""
+        """Count ``items`` more completed items.
+
+        Parameters
+        ----------
+        items : int
+            Items completed since the last call. [-]
+        """
         self.update(self.done + items)
 
     def update(self, done: int) -> None:
-        """Set the number of completed items."""
+        """Set the number of completed items.
+
+        Parameters
+        ----------
+        done : int
+            Items completed so far, clipped to 0..total. [-]
+        """
         done = min(max(int(done), 0), self.total) if self.total else int(done)
         if done > 0 and self._first_done_at is None:
             self._first_done_at = time.monotonic()
@@ -96,7 +114,13 @@ class ProgressBar:
     # drawing --------------------------------------------------------------------------------
 
     def eta_seconds(self, now: float | None = None):
-        """Estimated seconds left, or None while fewer than a few items are done."""
+        """Estimated seconds left, or None while fewer than a few items are done.
+
+        Parameters
+        ----------
+        now : float or None
+            Monotonic clock reading; None reads the clock. [s]
+        """
         if self._first_done_at is None or self.done >= self.total:
             return None
         now = time.monotonic() if now is None else now
@@ -107,7 +131,13 @@ class ProgressBar:
         return (self.total - self.done) * elapsed / counted
 
     def line(self, now: float | None = None) -> str:
-        """The text of the bar as drawn now."""
+        """The text of the bar as drawn now.
+
+        Parameters
+        ----------
+        now : float or None
+            Monotonic clock reading, for the time estimate; None reads the clock. [s]
+        """
         width = 24
         fraction = self.done / self.total if self.total else 1.0
         filled = int(round(width * fraction))

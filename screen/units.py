@@ -244,6 +244,15 @@ def parse_quantity(raw, kind: str, key: str, path: str | None = None) -> ParsedQ
 def parse_dimensionless(raw, key: str, path: str | None = None) -> ParsedQuantity:
     """Parse a dimensionless value: a bare number, ``"0.35"``, ``"35 %"`` or ``"0.35 ± 0.05"``.
 
+    Parameters
+    ----------
+    raw : str or float
+        Value as read from the case file or an override.
+    key : str
+        Case-file key path, for the error message.
+    path : str or None
+        Case-file path, for the error message.
+
     Raises
     ------
     UnitError
@@ -309,11 +318,34 @@ def _parse_gauge_pressure(raw, value, std, unit, key, path) -> ParsedQuantity:
 
 
 def to_celsius(kelvin):
-    """Kelvin to degC for presentation [K -> degC]; None for a missing or non-finite value."""
+    """Kelvin to degC for presentation [K -> degC]; None for a missing or non-finite value.
+
+    Parameters
+    ----------
+    kelvin : float or None
+        Absolute temperature. [K]
+
+    Returns
+    -------
+    float or None
+        Temperature. [degC]
+    """
     if kelvin is None or not math.isfinite(float(kelvin)):
         return None
     return float(kelvin) - ZERO_CELSIUS
 
 
 def to_hours(seconds):
+    """Seconds to hours for presentation [s -> h]; None stays None.
+
+    Parameters
+    ----------
+    seconds : float or None
+        Duration. [s]
+
+    Returns
+    -------
+    float or None
+        Duration. [h]
+    """
     return None if seconds is None else float(seconds) / SECONDS_PER_HOUR

@@ -54,7 +54,15 @@ def _json_rows(frame):
 
 
 def format_portfolio(frame, files_count: int) -> str:
-    """Plain-text table of a portfolio (one line per row, errors in full below)."""
+    """Plain-text table of a portfolio (one line per row, errors in full below).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Portfolio table (:data:`screen.runs.portfolio.COLUMNS`).
+    files_count : int
+        Number of case files screened.
+    """
     from screen.cautions import SHORT_CAUTION
 
     errors = frame[frame["error"].notna()]
@@ -131,6 +139,31 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
     DIR-or-FILES are case files or folders of *.toml case files. A case that cannot be
     screened gives a row with its error and never stops the batch. Exit status: 0 all cases
     screened; 1 some rows have errors (0 with --allow-errors); 2 bad arguments.
+
+    \f
+
+    Parameters
+    ----------
+    paths : tuple of str
+        DIR-or-FILES arguments: case files and/or folders of case files.
+    csv_path : str or None
+        ``--csv``: write the table as CSV.
+    workers : int or None
+        ``--workers``: worker processes (None: number of CPUs).
+    pdf_dir : str or None
+        ``--pdf-dir``: also write one PDF per case into this folder.
+    allow_errors : bool
+        ``--allow-errors``: exit with status 0 even when some cases failed.
+    as_json : bool
+        ``--json``: print the table as JSON records.
+    overrides : tuple of str
+        ``--set KEY=VALUE`` what-if overrides for every case.
+    recursive : bool
+        ``-r/--recursive``: search directories recursively.
+    force : bool
+        ``--force``: overwrite an existing CSV file and PDFs.
+    scheduler : str or None
+        ``--scheduler``: address of a dask.distributed scheduler.
     """
     from screen.cli.common import handle_errors
 

@@ -24,7 +24,27 @@ from screen.cli.common import handle_errors, run_check, timestamp
               help="Random seed of the Monte Carlo propagation.")
 @handle_errors
 def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed):
-    """Screen CASE_FILE and print the figures, the class and the warnings."""
+    """Screen CASE_FILE and print the figures, the class and the warnings.
+
+    \f
+
+    Parameters
+    ----------
+    case_file : str
+        CASE_FILE argument: the TOML case file.
+    as_json : bool
+        ``--json``: print one JSON object instead of text.
+    overrides : tuple of str
+        ``--set KEY=VALUE`` what-if overrides (values with units).
+    pdf_path : str or None
+        ``--pdf``: also write the PDF summary there.
+    force : bool
+        ``--force``: overwrite an existing output file.
+    samples : int or None
+        ``--uncertainty N``: Monte Carlo samples; None skips it.
+    seed : int
+        ``--seed``: random seed of the Monte Carlo propagation.
+    """
     if pdf_path:
         from screen.report import check_output_path
 

@@ -20,7 +20,13 @@ def _fail(message: str, code: int = EXIT_INPUT_ERROR):
 
 
 def handle_errors(func):
-    """Turn ScreenError into one line and exit status 2; other errors into one line, status 3."""
+    """Turn ScreenError into one line and exit status 2; other errors into one line, status 3.
+
+    Parameters
+    ----------
+    func : callable
+        Command callback to wrap.
+    """
 
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
@@ -70,12 +76,28 @@ class OneLineGroup(click.Group):
         return converted
 
     def parse_args(self, ctx, args):
+        """Parse the command line; a usage error becomes one line (exit status 2).
+
+        Parameters
+        ----------
+        ctx : click.Context
+            Context of the group.
+        args : list of str
+            Remaining command-line arguments.
+        """
         try:
             return super().parse_args(ctx, args)
         except click.UsageError as exc:
             raise self._one_line(exc) from None
 
     def invoke(self, ctx):
+        """Run the chosen command; a usage error becomes one line (exit status 2).
+
+        Parameters
+        ----------
+        ctx : click.Context
+            Context of the group.
+        """
         try:
             return super().invoke(ctx)
         except click.UsageError as exc:
@@ -84,7 +106,15 @@ class OneLineGroup(click.Group):
 
 
 def run_check(case_path, overrides=()):
-    """Load and screen one case; returns the ScreeningResult."""
+    """Load and screen one case; returns the ScreeningResult.
+
+    Parameters
+    ----------
+    case_path : str
+        TOML case file.
+    overrides : iterable of str
+        ``KEY=VALUE`` what-if overrides (values with units).
+    """
     from screen.io.case import load_case
     from screen.runs.screening import screen_case
 

@@ -35,6 +35,19 @@ _ARROWS = {"up": "increased", "down": "decreased", "changed": "changed", "added"
 
 
 def format_comparison(old, new, input_changes, result_changes) -> str:
+    """Plain-text comparison of two results, verdict changes first.
+
+    Parameters
+    ----------
+    old : dict
+        Earlier JSON-ready result.
+    new : dict
+        Later JSON-ready result.
+    input_changes : list of Change
+        Changed inputs (:func:`screen.runs.compare.diff_inputs`).
+    result_changes : list of Change
+        Changed results (:func:`screen.runs.compare.diff_dicts`).
+    """
     lines = [f"Comparison: {old['case']['path']}  ->  {new['case']['path']}", ""]
     verdicts = [c for c in result_changes if c.is_verdict]
     if verdicts:
@@ -69,7 +82,21 @@ def format_comparison(old, new, input_changes, result_changes) -> str:
 @click.option("--fail-on-verdict-change", is_flag=True,
               help="Exit with status 1 when a verdict changed (for scripted reviews).")
 def compare_command(old, new, as_json, fail_on_verdict_change):
-    """Compare two case files (or a case and an earlier --json result): what changed."""
+    """Compare two case files (or a case and an earlier --json result): what changed.
+
+    \f
+
+    Parameters
+    ----------
+    old : str
+        OLD argument: case file or earlier ``check --json`` output.
+    new : str
+        NEW argument: case file or ``check --json`` output.
+    as_json : bool
+        ``--json``: print the differences as JSON.
+    fail_on_verdict_change : bool
+        ``--fail-on-verdict-change``: exit with status 1 when a verdict changed.
+    """
     from screen.cli.common import handle_errors
 
     @handle_errors
@@ -108,7 +135,25 @@ def compare_command(old, new, as_json, fail_on_verdict_change):
 @click.option("--force", is_flag=True, help="Overwrite an existing CSV file.")
 @click.option("--json", "as_json", is_flag=True, help="Print rows and flips as JSON.")
 def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
-    """Run CASE_FILE over a range of one or two inputs; report where verdicts flip."""
+    """Run CASE_FILE over a range of one or two inputs; report where verdicts flip.
+
+    \f
+
+    Parameters
+    ----------
+    case_file : str
+        CASE_FILE argument: the TOML case file.
+    vary : tuple of str
+        ``--vary KEY=START:STOP:STEPS`` (once or twice; START and STOP with units).
+    overrides : tuple of str
+        ``--set KEY=VALUE`` fixed what-if overrides.
+    csv_path : str or None
+        ``--csv``: also write the table as CSV.
+    force : bool
+        ``--force``: overwrite an existing CSV file.
+    as_json : bool
+        ``--json``: print rows and flips as JSON.
+    """
     from screen.cli.common import handle_errors
 
     @handle_errors

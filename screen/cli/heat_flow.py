@@ -64,6 +64,33 @@ def heat_flow_command(trace, initial_mass, specific_heat, limiting_amount, feed_
       runaway-screen heat-flow run.csv --initial-mass '1.2 kg' --specific-heat '1.9 kJ/(kg K)'
       runaway-screen heat-flow run.csv --initial-mass '1.2 kg' --specific-heat '1.9 kJ/(kg K)' \\
           --limiting-amount '1.5 mol' --feed-temperature '20 degC' --json -o synthesis.toml
+
+    \f
+
+    Parameters
+    ----------
+    trace : str
+        TRACE.csv argument: the heat-flow trace of the run.
+    initial_mass : str
+        ``--initial-mass``: reaction mass before dosing, with unit.
+    specific_heat : str
+        ``--specific-heat``: c'p of the reaction mass, with unit.
+    limiting_amount : str or None
+        ``--limiting-amount``: limiting reagent, with unit.
+    feed_temperature : str or None
+        ``--feed-temperature``: temperature of the feed, with unit.
+    feed_specific_heat : str or None
+        ``--feed-specific-heat``: c'p of the feed, with unit.
+    baseline : str
+        ``--baseline``: ``linear``, ``dosing`` or ``conversion``.
+    as_json : bool
+        ``--json``: print one JSON object instead of text.
+    output : str or None
+        ``-o/--output``: write [synthesis] and [process] case-file keys.
+    force : bool
+        ``--force``: allow -o to replace an existing file.
+    png_dir : str or None
+        ``--png-dir``: write the figures as PNG files there.
     """
     from screen.cli.common import handle_errors
 

@@ -76,6 +76,57 @@ def kinetics_command(ctx, thermograms, peaks, sample_mass, heating_rate, exo_up,
       runaway-screen kinetics run_2K.csv run_4K.csv run_8K.csv --sample-mass '2.1 mg'
       runaway-screen kinetics run_*.csv --json -o decomposition.toml --png-dir figures
       runaway-screen kinetics --onset '185 degC' --energy '650 J/g'
+
+    \f
+
+    Parameters
+    ----------
+    ctx : click.Context
+        Click context (tells which options were given).
+    thermograms : tuple of str
+        THERMOGRAM.csv arguments: dynamic DSC runs.
+    peaks : str or None
+        ``--peaks``: peak table CSV.
+    sample_mass : tuple of str
+        ``--sample-mass``: sample mass with unit, once or once per file.
+    heating_rate : tuple of str
+        ``--heating-rate``: nominal heating rate with unit, once or once per file.
+    exo_up : bool or None
+        ``--exo-up/--exo-down``: direction of exotherms; None detects it.
+    baseline : str
+        ``--baseline``: ``linear`` or ``sigmoidal``.
+    integration_range : tuple of float or None
+        ``--range LOW HIGH``: integration limits. [degC]
+    model : str
+        ``--model``: ``auto``, ``nth-order`` or ``autocatalytic``.
+    onset : str or None
+        ``--onset``: DSC onset temperature with unit, for the crude TD24 estimate.
+    energy : str or None
+        ``--energy``: decomposition energy with unit.
+    detection_limit : str
+        ``--detection-limit``: heat release rate with unit taken as the DSC detection limit.
+    specific_heat : str
+        ``--specific-heat``: c'p of the reaction mass with unit.
+    confidence : float
+        ``--confidence``: two-sided confidence level. [-]
+    as_json : bool
+        ``--json``: print one JSON object instead of text.
+    output : str or None
+        ``-o/--output``: write a [decomposition] case-file section.
+    force : bool
+        ``--force``: allow -o to replace an existing file.
+    png_dir : str or None
+        ``--png-dir``: write the figures as PNG files there.
+    adiabatic : str or None
+        ``--adiabatic``: adiabatic heat-wait-search run CSV instead of DSC data.
+    phi : float or None
+        ``--phi``: thermal inertia of the adiabatic run. [-]
+    cell_mass : str or None
+        ``--cell-mass``: mass of the adiabatic test cell with unit.
+    cell_specific_heat : str or None
+        ``--cell-specific-heat``: c'p of the test cell with unit.
+    rate_threshold : str
+        ``--rate-threshold``: self-heat rate with unit that marks the exotherm.
     """
     from screen.cli.common import handle_errors
 

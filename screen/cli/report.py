@@ -12,6 +12,11 @@ import click
 def load_earlier_result(path) -> dict:
     """An earlier result as a JSON-ready dict: a ``check --json`` output or a case file.
 
+    Parameters
+    ----------
+    path : str or path-like
+        A ``check --json`` output (``.json``) or a case file.
+
     Raises
     ------
     DataFileError
@@ -45,7 +50,23 @@ def load_earlier_result(path) -> dict:
               help="Earlier result (a 'check --json' output or an older case file): adds a "
                    "table of what changed since.")
 def report_command(case_file, output, force, overrides, since_path):
-    """Write the PDF screening summary of CASE_FILE (figures, inputs, methods, cautions)."""
+    """Write the PDF screening summary of CASE_FILE (figures, inputs, methods, cautions).
+
+    \f
+
+    Parameters
+    ----------
+    case_file : str
+        CASE_FILE argument: the TOML case file.
+    output : str
+        ``-o/--output``: PDF file to write.
+    force : bool
+        ``--force``: overwrite an existing output file.
+    overrides : tuple of str
+        ``--set KEY=VALUE`` what-if overrides (values with units).
+    since_path : str or None
+        ``--since``: earlier result or case file; adds a table of what changed.
+    """
     from screen.cli.common import handle_errors
 
     @handle_errors
