@@ -8,7 +8,7 @@ time over the whole run (feed stopped and feed continuing) and adds ``results["s
 Hooks (called automatically when this module exists):
 
 - :func:`check_case` by :mod:`screen.io.case` at load time (cross-field rules, raises CaseError);
-- :func:`add_simulation` by :mod:`screen.analyses.engine` when the case has ``[synthesis_kinetics]``.
+- :func:`add_simulation` by :mod:`screen.analyses.engine` with ``[synthesis_kinetics]``.
 
 Nothing here reads files or prints. Design choices are marked "design".
 """
@@ -237,7 +237,7 @@ def _vessel_cooling(case, inputs: SimulationInputs):
     note = f"U A = {ua:.4g} W/K at the final fill, constant (design)"
     losses = float(vessel.heat_losses or 0.0)
     if losses > 0.0:
-        # Losses are a second conductance to ambient: one equivalent line, as in screen.analyses.vessels.
+        # Losses are a second conductance to ambient: one equivalent line (as the vessels).
         from screen.models.semenov import effective_cooling
 
         ua, coolant = effective_cooling(ua, coolant, losses, float(vessel.ambient_temperature))
@@ -307,19 +307,10 @@ def add_simulation(case, result, curves: bool = True) -> None:
     SolverError
         The integration failed.
     """
-    import numpy as np
-
-    from screen.models.reactor import (
-        Cooling,
-        dosing_warnings,
-        simulate_normal_operation,
-        worst_case_scan,
-    )
+    from screen.models.reactor import Cooling
 
     path = case.path
     sections = case.sections
-    process = sections["process"]
-    t_p = float(process.temperature)
     cp = float(sections["mass"].specific_heat)
     inputs = resolve_inputs(sections, case.vessels, path, [])
     _check_rate_unit(case, inputs)
@@ -329,8 +320,42 @@ def add_simulation(case, result, curves: bool = True) -> None:
     decomposition = _decomposition_for(case, result)
     mtt = float(result.curves["temperatures_K"]["MTT"])
     scan_points = FULL_SCAN_POINTS if curves else QUICK_SCAN_POINTS
-    stated = float(process.accumulation) if process.given("accumulation") else None
+    run = _SimulationRun(case, inputs, kinetics, charge, feed, cooling, decomposition, mtt,
+                         scan_points, curves)
+    _integrate_and_scan(run)
+    _derive_figures(run, result)
+    _add_simulation_warnings(run, result, vessel.name)
+    method = _method_text(run, vessel.name, cooling_note)
+    result.methods["simulation"] = method
+    results = _simulation_results(run, vessel.name, method)
+    results["summary_lines"] = _summary_lines(results, scan_points)
+    result.results["simulation"] = results
+    if curves:
+        result.curves["simulation"] = _simulation_curves(run)
 
+
+class _SimulationRun:
+    """What one simulation of the case computes, step by step (see :func:`add_simulation`)."""
+
+    def __init__(self, case, inputs, kinetics, charge, feed, cooling, decomposition, mtt,
+                 scan_points, curves):
+        self.case, self.inputs, self.kinetics, self.charge = case, inputs, kinetics, charge
+        self.feed, self.cooling, self.decomposition = feed, cooling, decomposition
+        self.mtt, self.scan_points, self.curves = mtt, scan_points, curves
+        process = case.sections["process"]
+        self.t_p = float(process.temperature)
+        self.stated = float(process.accumulation) if process.given("accumulation") else None
+
+
+def _integrate_and_scan(run) -> None:
+    """Normal operation (end time extended until the synthesis is over), the scan of the
+    failure time and the dosing checks."""
+    from screen.models.reactor import dosing_warnings, simulate_normal_operation, worst_case_scan
+
+    inputs, path, curves = run.inputs, run.case.path, run.curves
+    kinetics, charge, cooling, feed = run.kinetics, run.charge, run.cooling, run.feed
+    decomposition, mtt, scan_points = run.decomposition, run.mtt, run.scan_points
+    t_p, stated = run.t_p, run.stated
     end_time, end_basis = inputs.end_time, inputs.end_time_source
     try:
         while True:
@@ -355,6 +380,15 @@ def add_simulation(case, result, curves: bool = True) -> None:
         raise SolverError(f"cooling-failure simulation: {exc.message}", "synthesis_kinetics",
                           path) from None
 
+    run.normal, run.scan, run.dosing = normal, scan, dosing
+    run.end_time, run.end_basis = end_time, end_basis
+
+
+def _derive_figures(run, result) -> None:
+    """Worst cases per feed mode, MTSRs, the synthesis rate at the MTT, the normal peak."""
+    import numpy as np
+
+    scan, normal, kinetics, charge = run.scan, run.normal, run.kinetics, run.charge
     stopped, continuing = scan.feed_stopped, scan.feed_continuing
     worst_stopped, worst_continuing = stopped.worst, continuing.worst
     profile = scan.profile
@@ -368,9 +402,26 @@ def add_simulation(case, result, curves: bool = True) -> None:
         rate_at_mtt = _specific_synthesis_heat_rate(kinetics, crossing, charge.density)
     peak_normal = float(np.max(normal.temperature))
     shortest_mtt = min(stopped.shortest_time_to_mtt, continuing.shortest_time_to_mtt)
-    vessel_name = vessel.name
     mode = "semi-batch" if normal.is_semi_batch else "batch"
 
+    run.stopped, run.continuing, run.worst_stopped = stopped, continuing, worst_stopped
+    run.worst_continuing, run.profile = worst_continuing, profile
+    run.continuing_end = continuing_end
+    run.mtsr_stopped, run.mtsr_continuing, run.case_mtsr = mtsr_stopped, mtsr_continuing, case_mtsr
+    run.rate_at_mtt, run.peak_normal, run.shortest_mtt = rate_at_mtt, peak_normal, shortest_mtt
+    run.mode = mode
+
+
+def _add_simulation_warnings(run, result, vessel_name) -> None:
+    """Warnings of the dosing checks, the scan, an MTSR above the case's, the feed running on,
+    the MTT reached in normal operation and a triggered decomposition."""
+    import numpy as np
+
+    dosing, scan, normal, mtt = run.dosing, run.scan, run.normal, run.mtt
+    stopped, continuing = run.stopped, run.continuing
+    worst_stopped, worst_continuing = run.worst_stopped, run.worst_continuing
+    case_mtsr, mtsr_stopped, mtsr_continuing = run.case_mtsr, run.mtsr_stopped, run.mtsr_continuing
+    peak_normal = run.peak_normal
     warnings = result.warnings
     prefix = f"Simulation ({vessel_name}): "
     for item in dosing.warnings:
@@ -412,6 +463,12 @@ def add_simulation(case, result, curves: bool = True) -> None:
         warnings.append(f"{prefix}the decomposition in the simulation rests on the crude onset "
                         f"estimate; its times and the trigger flag are indicative only.")
 
+    run.triggered_stopped, run.triggered_continuing = triggered_stopped, triggered_continuing
+
+
+def _method_text(run, vessel_name, cooling_note) -> str:
+    """The method line of the simulation, with the notes on how its inputs were read."""
+    inputs, scan_points = run.inputs, run.scan_points
     notes = list(inputs.notes)
     if inputs.scale_factor != 1.0:
         notes.append(f"amounts and masses scaled by {inputs.scale_factor:.4g} to the batch mass "
@@ -429,8 +486,20 @@ def add_simulation(case, result, curves: bool = True) -> None:
         "mode with a full continuation. No evaporation: above the MTT the mass is treated as "
         "closed and non-boiling. Decomposition triggered = half of what remained converted "
         "(design). " + "; ".join(notes) + ".")
-    result.methods["simulation"] = method
+    return method
 
+
+def _simulation_results(run, vessel_name, method) -> dict:
+    """The JSON-ready ``results["simulation"]`` member (units in the key names)."""
+    inputs, scan, dosing, normal = run.inputs, run.scan, run.dosing, run.normal
+    scan_points, end_time, end_basis, mtt = run.scan_points, run.end_time, run.end_basis, run.mtt
+    stated, mode, case_mtsr = run.stated, run.mode, run.case_mtsr
+    mtsr_stopped, mtsr_continuing = run.mtsr_stopped, run.mtsr_continuing
+    worst_stopped, worst_continuing = run.worst_stopped, run.worst_continuing
+    continuing_end, shortest_mtt = run.continuing_end, run.shortest_mtt
+    rate_at_mtt = run.rate_at_mtt
+    peak_normal = run.peak_normal
+    triggered_stopped, triggered_continuing = run.triggered_stopped, run.triggered_continuing
     results: dict[str, Any] = {
         "vessel": vessel_name,
         "mode": mode,
@@ -481,32 +550,38 @@ def add_simulation(case, result, curves: bool = True) -> None:
                             for item in dosing.warnings],
         "method": method,
     }
-    results["summary_lines"] = _summary_lines(results, scan_points)
-    result.results["simulation"] = results
+    return results
 
-    if curves:
-        after_stopped, course_stopped = _failure_course(worst_stopped)
-        after_continuing, course_continuing = _failure_course(worst_continuing)
-        result.curves["simulation"] = {
-            "time_s": np.asarray(profile.time),
-            "temperature_K": np.asarray(normal.state_at(profile.time)["temperature"]),
-            "accumulation": np.asarray(profile.accumulation),
-            "mtsr_K": np.asarray(profile.mtsr),
-            "mtsr_without_mass_correction_K": np.asarray(profile.mtsr_without_mass_correction),
-            "final_temperature_feed_continuing_K": np.asarray(
-                profile.final_temperature_feed_continuing),
-            "worst_failure_time_s": float(worst_stopped.failure_time),
-            "time_after_failure_s": after_stopped,
-            "failure_temperature_K": course_stopped,
-            "worst_failure_time_feed_continuing_s": float(worst_continuing.failure_time),
-            "time_after_failure_feed_continuing_s": after_continuing,
-            "failure_temperature_feed_continuing_K": course_continuing,
-            "scan_failure_times_s": np.asarray(stopped.failure_times),
-            "scan_mtsr_feed_stopped_K": np.asarray(stopped.maximum_synthesis_temperature),
-            "scan_mtsr_feed_continuing_K": np.asarray(continuing.maximum_synthesis_temperature),
-            "mtt_K": mtt,
-            "process_temperature_K": t_p,
-        }
+
+def _simulation_curves(run) -> dict:
+    """Arrays for the figures [s, K, -]: normal course, MTSR(t), the worst failure courses."""
+    import numpy as np
+
+    profile, normal, mtt, t_p = run.profile, run.normal, run.mtt, run.t_p
+    stopped, worst_stopped, worst_continuing = run.stopped, run.worst_stopped, run.worst_continuing
+    continuing = run.continuing
+    after_stopped, course_stopped = _failure_course(worst_stopped)
+    after_continuing, course_continuing = _failure_course(worst_continuing)
+    return {
+        "time_s": np.asarray(profile.time),
+        "temperature_K": np.asarray(normal.state_at(profile.time)["temperature"]),
+        "accumulation": np.asarray(profile.accumulation),
+        "mtsr_K": np.asarray(profile.mtsr),
+        "mtsr_without_mass_correction_K": np.asarray(profile.mtsr_without_mass_correction),
+        "final_temperature_feed_continuing_K": np.asarray(
+            profile.final_temperature_feed_continuing),
+        "worst_failure_time_s": float(worst_stopped.failure_time),
+        "time_after_failure_s": after_stopped,
+        "failure_temperature_K": course_stopped,
+        "worst_failure_time_feed_continuing_s": float(worst_continuing.failure_time),
+        "time_after_failure_feed_continuing_s": after_continuing,
+        "failure_temperature_feed_continuing_K": course_continuing,
+        "scan_failure_times_s": np.asarray(stopped.failure_times),
+        "scan_mtsr_feed_stopped_K": np.asarray(stopped.maximum_synthesis_temperature),
+        "scan_mtsr_feed_continuing_K": np.asarray(continuing.maximum_synthesis_temperature),
+        "mtt_K": mtt,
+        "process_temperature_K": t_p,
+    }
 
 
 def _summary_lines(r: dict, scan_points: int) -> list[str]:
