@@ -349,3 +349,28 @@ def to_hours(seconds):
         Duration. [h]
     """
     return None if seconds is None else float(seconds) / SECONDS_PER_HOUR
+
+
+def from_si(value: float, si_unit: str, unit: str) -> float:
+    """An SI value in another unit of the same dimension, for presentation (e.g. K -> degC).
+
+    Parameters
+    ----------
+    value : float
+        The value in ``si_unit``. [si_unit]
+    si_unit : str
+        Its SI unit (``"K"``, ``"kg"``, ``"W/(m^2*K)"``, ``"1"`` ...).
+    unit : str
+        The unit wanted, as a case file writes it (``"degC"``, ``"t"``, ``"W/(m2 K)"``); empty
+        for a dimensionless value. Offset temperatures are converted as absolute temperatures.
+
+    Returns
+    -------
+    float
+        The value in ``unit``. [unit]
+    """
+    if not unit or unit == si_unit:
+        return float(value)
+    ureg = registry()
+    return float(ureg.Quantity(float(value), _normalise_unit(si_unit)).to(
+        _normalise_unit(unit)).magnitude)

@@ -22,8 +22,10 @@ from screen.cli.common import handle_errors, run_check, timestamp
               help="Monte Carlo propagation of the uncertainties given in the case (N samples).")
 @click.option("--seed", type=int, default=20261201, show_default=True,
               help="Random seed of the Monte Carlo propagation.")
+@click.option("--limits", "with_limits", is_flag=True,
+              help="Also find the safe operating limits (as the 'limits' command, defaults).")
 @handle_errors
-def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed):
+def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed, with_limits):
     """Screen CASE_FILE and print the figures, the class and the warnings.
 
     \f
@@ -44,6 +46,8 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed)
         ``--uncertainty N``: Monte Carlo samples; None skips it.
     seed : int
         ``--seed``: random seed of the Monte Carlo propagation.
+    with_limits : bool
+        ``--limits``: also find the safe operating limits (defaults of ``limits``).
     """
     if pdf_path:
         from screen.report import check_output_path
@@ -54,6 +58,10 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed)
         from screen.runs.uncertainty import add_uncertainty
 
         add_uncertainty(result, samples=samples, seed=seed, progress=not as_json)
+    if with_limits:
+        from screen.runs.limits import add_limits
+
+        add_limits(result.case, result)
     data = result.to_json_dict(generated_at=timestamp())
     if pdf_path:
         from screen.report import write_report
@@ -65,6 +73,10 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed)
         from screen.report.terminal import format_check
 
         click.echo(format_check(data))
+        if with_limits:
+            from screen.report.limits import limit_lines
+
+            click.echo("\n" + "\n".join(limit_lines(data)))
         if pdf_path:
             click.echo(f"\nPDF written to {pdf_path}")
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 import click
 
 from screen import __version__
-from screen.cli import batch, check, compare, heat_flow, kinetics, report
+from screen.cli import batch, check, compare, heat_flow, kinetics, limits, report
 from screen.cli.common import OneLineGroup
 
 
@@ -32,6 +32,7 @@ main.add_command(compare.sweep_command)
 main.add_command(kinetics.kinetics_command)
 main.add_command(batch.batch_command)
 main.add_command(heat_flow.heat_flow_command)
+main.add_command(limits.limits_command)
 
 if __name__ == "__main__":  # pragma: no cover
     main()

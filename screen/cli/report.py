@@ -49,7 +49,11 @@ def load_earlier_result(path) -> dict:
               metavar="OLD.json|OLD.toml",
               help="Earlier result (a 'check --json' output or an older case file): adds a "
                    "table of what changed since.")
-def report_command(case_file, output, force, overrides, since_path):
+@click.option("--limits", "with_limits", is_flag=True,
+              help="Add the safe operating limits block (as the 'limits' command).")
+@click.option("--window", "window", nargs=2, default=None, metavar="KEY1 KEY2",
+              help="With --limits: add the operating-window figure over two inputs.")
+def report_command(case_file, output, force, overrides, since_path, with_limits, window):
     """Write the PDF screening summary of CASE_FILE (figures, inputs, methods, cautions).
 
     \f
@@ -66,6 +70,10 @@ def report_command(case_file, output, force, overrides, since_path):
         ``--set KEY=VALUE`` what-if overrides (values with units).
     since_path : str or None
         ``--since``: earlier result or case file; adds a table of what changed.
+    with_limits : bool
+        ``--limits``: add the safe operating limits block.
+    window : tuple of str or None
+        ``--window KEY1 KEY2`` (with ``--limits``): add the operating-window figure.
     """
     from screen.cli.common import handle_errors
 
@@ -76,13 +84,22 @@ def report_command(case_file, output, force, overrides, since_path):
         from screen.report import check_output_path, write_report
 
         check_output_path(str(output), force)  # fail before the computation, not after it
+        if window and not with_limits:
+            from screen.errors import CaseError
+
+            raise CaseError("--window needs --limits", key="--window")
         steps = 3 if since_path else 2
         with ProgressBar(steps, "Report", unit="steps") as bar:
             since = None
             if since_path:
                 since = load_earlier_result(since_path)
                 bar.advance()
-            result = run_check(case_file, overrides)
+            if with_limits:
+                from screen.cli.limits import run_limits
+
+                result = run_limits(case_file, overrides, 2, (), "50 K", window)
+            else:
+                result = run_check(case_file, overrides)
             bar.advance()
             pages = write_report(result, output, force=force, generated_at=timestamp(),
                                  since=since)

@@ -22,6 +22,7 @@ import re
 
 from screen.report import figure_data, figures
 from screen.report.layout import bullet, figure_block, paragraph, table
+from screen.report.limits import limits_pdf_block
 from screen.report.style import (
     FONT_BOLD,
     FRAME_WIDTH,
@@ -43,6 +44,7 @@ OPTIONAL_BLOCKS = (
     ("pressure", "Pressure in a closed vessel"),
     ("scenarios", "Deviation scenarios"),
     ("uncertainty", "Uncertainty of the verdict"),
+    ("limits", "Safe operating limits"),
 )
 
 #: Barrier grades from best to worst ("not assessed": boiling is not called upon).
@@ -176,6 +178,8 @@ def optional_blocks(result, styles, counter):
         "scenarios": lambda b: scenarios_block(b, styles),
         "uncertainty": lambda b: uncertainty_block(b, curves.get("uncertainty"), results,
                                                    styles, counter),
+        "limits": lambda b: limits_pdf_block(results, curves.get("limits_window"), styles,
+                                             counter, [v.name for v in result.case.vessels]),
     }
     for name in names:
         block = results.get(name)

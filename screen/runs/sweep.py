@@ -224,22 +224,58 @@ class Flip:
                 "changes": [list(c) for c in self.changed()]}
 
 
-def _bracket_flip(case, key, low, high, fixed, rel_tol, max_iter):
-    """Bisection: the narrowest (low, high, row_low, row_high) around the first verdict change."""
-    row_low = evaluate_point(case, list(fixed) + [(key, low)])
-    row_high = evaluate_point(case, list(fixed) + [(key, high)])
-    sig_low = _verdict_signature(row_low)
-    scale = abs(high - low)
+def bisect_change(evaluate, signature, low, high, tolerance, row_low=None, row_high=None,
+                  max_iter=80, split=None):
+    """Bisection on an input: the narrowest bracket around the first change of ``signature``.
+
+    Parameters
+    ----------
+    evaluate : callable
+        ``evaluate(x) -> row`` (one screening at input value ``x``, SI).
+    signature : callable
+        ``signature(row) -> hashable``: what must change (the verdicts).
+    low, high : float
+        Bracket ends, SI; the signature is taken to differ between them.
+    tolerance : float
+        Stop when the bracket is at most this wide. [unit of the input]
+    row_low, row_high : dict, optional
+        Rows already evaluated at the ends.
+    max_iter : int
+        Largest number of evaluations.
+    split : callable, optional
+        ``split(low, high, row_low, row_high) -> x`` strictly inside the bracket (e.g. a secant
+        step on a continuous figure); default the midpoint.
+
+    Returns
+    -------
+    (float, float, dict, dict)
+        ``(low, high, row_low, row_high)`` with ``high - low <= tolerance`` unless ``max_iter``
+        ran out.
+    """
+    row_low = evaluate(low) if row_low is None else row_low
+    row_high = evaluate(high) if row_high is None else row_high
+    sig_low = signature(row_low)
     for _ in range(max_iter):
-        if abs(high - low) <= rel_tol * max(scale, 1e-300):
+        if abs(high - low) <= tolerance:
             break
         mid = 0.5 * (low + high)
-        row_mid = evaluate_point(case, list(fixed) + [(key, mid)])
-        if _verdict_signature(row_mid) == sig_low:
+        if split is not None:
+            trial = split(low, high, row_low, row_high)
+            if trial is not None and min(low, high) < trial < max(low, high):
+                mid = trial
+        row_mid = evaluate(mid)
+        if signature(row_mid) == sig_low:
             low, row_low = mid, row_mid
         else:
             high, row_high = mid, row_mid
     return low, high, row_low, row_high
+
+
+def _bracket_flip(case, key, low, high, fixed, rel_tol, max_iter):
+    """Bisection: the narrowest (low, high, row_low, row_high) around the first verdict change."""
+    return bisect_change(lambda x: evaluate_point(case, list(fixed) + [(key, x)]),
+                         _verdict_signature, low, high,
+                         rel_tol * max(abs(high - low), 1e-300), max_iter=max_iter)
 
 
 def _verdicts(row):
