@@ -160,34 +160,42 @@ def _parse_key(key: str, case) -> tuple[str, str, int | None]:
             try:
                 index = int(parts[1]) - 1
             except ValueError:
-                raise CaseError(f"--vary {key!r}: use vessel.KEY (every vessel) or vessel.N.KEY "
+                raise CaseError(f"{key!r}: use vessel.KEY (every vessel) or vessel.N.KEY "
                                 f"(N = 1, 2, ... in file order)", key="--vary") from None
     elif len(parts) == 2:
         generic, index = key, None
     else:
-        raise CaseError(f"--vary {key!r}: not a controllable input; limits varies {allowed}",
+        raise CaseError(f"{key!r}: not a controllable input; limits varies {allowed}",
                         key="--vary")
     if generic not in CONTROLLABLE:
         known = (parts[0] in SCHEMA and parts[-1] in SCHEMA[parts[0]])
         what = "not a controllable input" if known else "no such key in the case schema"
-        raise CaseError(f"--vary {key!r}: {what}; limits varies {allowed} (vessel keys as "
+        raise CaseError(f"{key!r}: {what}; limits varies {allowed} (vessel keys as "
                         f"vessel.KEY or vessel.N.KEY)", key="--vary")
     section, name = generic.split(".")
     if section == "vessel":
         if not case.vessels:
-            raise CaseError(f"--vary {key!r}: the case has no [vessel]", key="--vary")
+            raise CaseError(f"{key!r}: the case has no [vessel]", key="--vary")
         if index is not None and not 0 <= index < len(case.vessels):
-            raise CaseError(f"--vary {key!r}: vessel number {index + 1} does not exist (the case "
+            raise CaseError(f"{key!r}: vessel number {index + 1} does not exist (the case "
                             f"has {len(case.vessels)})", key="--vary")
         if index is None and len(case.vessels) == 1:
             index = 0
     elif section not in case.sections or case.sections[section].get(name) is None:
-        raise CaseError(f"--vary {key!r}: the case does not give {key}, so there is nothing to "
+        raise CaseError(f"{key!r}: the case does not give {key}, so there is nothing to "
                         f"vary; add it to the case first", key="--vary")
     if generic == "process.accumulation" and case.sections["process"].mode != "semi-batch":
-        raise CaseError(f"--vary {key!r}: in batch mode the accumulation is 1 (all reagents "
+        raise CaseError(f"{key!r}: in batch mode the accumulation is 1 (all reagents "
                         f"charged); vary it only for a semi-batch process", key="--vary")
     return section, name, index
+
+
+def _parse_key_of_case(key: str, case, option: str = "--vary"):
+    """:func:`_parse_key`, with the case file named in the error."""
+    try:
+        return _parse_key(key, case)
+    except CaseError as exc:
+        raise CaseError(exc.message, option, getattr(case, "path", None)) from None
 
 
 def _current_value(case, section, name, index) -> float:
@@ -284,7 +292,7 @@ def resolve_inputs(case, keys, base_results) -> list[LimitInput]:
     seen = set()
     for key in keys:
         key = key.strip()
-        section, name, index = _parse_key(key, case)
+        section, name, index = _parse_key_of_case(key, case)
         if key in seen:
             continue
         seen.add(key)
@@ -294,7 +302,7 @@ def resolve_inputs(case, keys, base_results) -> list[LimitInput]:
         if not low <= current <= high:
             low, high = min(low, current), max(high, current)
         if not high > low:
-            raise CaseError(f"--vary {key!r}: no admissible range to vary ({basis})",
+            raise CaseError(f"{key!r}: no admissible range to vary ({basis})",
                             key="--vary")
         unit = _file_unit(case, section, name, index, kind)
         inputs.append(LimitInput(key, section, name, index, low, high, current, kind, unit,
@@ -844,10 +852,10 @@ WINDOW_POINTS = 17
 def check_window_keys(case, keys) -> None:
     """Both keys must be controllable inputs of the case and differ (``--window``)."""
     if len(keys) != 2 or keys[0] == keys[1]:
-        raise CaseError(f"--window {' '.join(keys)}: give two different inputs, e.g. "
+        raise CaseError(f"{' '.join(keys)}: give two different inputs, e.g. "
                         f"--window process.temperature process.accumulation", key="--window")
     for key in keys:
-        _parse_key(key, case)
+        _parse_key_of_case(key, case, option="--window")
 
 
 def _window_axis(item: LimitInput, entries: list[dict]) -> tuple[float, float]:
