@@ -478,18 +478,15 @@ def screening_variant(case):
     criteria here (and are not rerun at the points), so only ``evaporation_check`` is kept; a
     scenario's own cross-check (e.g. dosing_temperature below the process temperature) then does
     not reject points of the range."""
-    from screen.io.case import Section
+    from screen.io.case import case_with_changes
 
     scenarios = case.sections.get("scenarios")
     if scenarios is None:
         return case
-    sections = dict(case.sections)
-    kept = {k: v for k, v in scenarios.as_dict().items() if k == "evaporation_check"}
-    if kept:
-        sections["scenarios"] = Section("scenarios", kept, SCHEMA["scenarios"])
-    else:
-        del sections["scenarios"]
-    return dataclasses.replace(case, sections=sections)
+    dropped = {k: None for k in scenarios.as_dict() if k != "evaporation_check"}
+    if len(dropped) == len(scenarios.as_dict()):
+        return case_with_changes(case, drop=("scenarios",))
+    return case_with_changes(case, {"scenarios": dropped})
 
 
 class _Evaluator:
