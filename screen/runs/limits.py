@@ -63,6 +63,9 @@ DEFAULT_ONSET_MARGIN = 50.0
 RELATIVE_TOLERANCE = 1e-6
 #: Interior grid points between today's value and each end of the range.
 GRID_POINTS_PER_SIDE = 2
+#: A screening costing more than this [s CPU] (a simulation at each point) gets no interior
+#: grid points: both ends and today's value only (design).
+EXPENSIVE_SCREENING = 0.15
 
 CRITERION_TEXT = {
     "criticality_class": "class at most {k}",
@@ -380,7 +383,7 @@ class Criterion:
         if "error" in row:
             return []
         r = row["results"]
-        mtsr = _governing(r, "mtsr_governing_degC", "mtsr_degC")
+        mtsr = _mtsr_guide(r)
         if self.name == "criticality_class":
             # Guides only (the class itself is read from the screening): the ordering of
             # MTSR, MTT and TD24 that separates class <= k from the classes above it
@@ -398,7 +401,9 @@ class Criterion:
             return [max(td24 - mtsr, td24 - mtt), below_tp]
         if self.name == "onset_margin":
             value = _governing(r, "onset_margin_governing_K", "onset_margin_K")
-            return [None if value is None else value - self.margin]
+            td24 = r.get("td24_degC")
+            return [None if td24 is None or mtsr is None else td24 - mtsr - self.margin,
+                    None if value is None else value - self.margin]
         if self.name == "decomposition_stability":
             entry = _vessel_entry(r.get("vessels"), self.vessel) or {}
             return [_difference(entry.get("no_return_temperature_degC"), mtsr),
@@ -433,6 +438,17 @@ def _difference(a, b):
         return None
     value = float(a) - float(b)
     return value if math.isfinite(value) else None
+
+
+def _mtsr_guide(r: dict):
+    """MTSR for the secant guides [degC]: the highest of the stated, the simulated (feed
+    stopped) and the governing value. Continuous where the governing value switches source
+    (the verdicts themselves are read from the screening)."""
+    simulation = r.get("simulation") if isinstance(r.get("simulation"), dict) else {}
+    values = [r.get("mtsr_degC"), r.get("mtsr_governing_degC"),
+              simulation.get("mtsr_feed_stopped_degC")]
+    values = [float(v) for v in values if v is not None]
+    return max(values) if values else None
 
 
 def _governing(r: dict, governing_key: str, key: str):
@@ -507,6 +523,7 @@ class _Evaluator:
             self.key = f"vessel.{item.name}"
         self.rows: dict[float, dict] = {}
         self.count = 0
+        self.seconds = 0.0  # CPU time of the most expensive screening so far [s]
 
     def __call__(self, value: float) -> dict:
         value = float(value)
@@ -519,11 +536,16 @@ class _Evaluator:
     def _evaluate(self, value: float) -> dict:
         from screen.runs.screening import screen_case
 
+        import time
+
         self.count += 1
+        start = time.process_time()
         try:
             result = screen_case(self._case_with_value(self.case, self.key, value), curves=False)
         except ScreenError as exc:
             return {"error": exc.message}
+        finally:
+            self.seconds = max(self.seconds, time.process_time() - start)
         return {"results": result.results}
 
 
@@ -560,7 +582,7 @@ class _Secant:
         return None
 
 
-def _grid(item: LimitInput) -> list[float]:
+def _grid(item: LimitInput, per_side: int = GRID_POINTS_PER_SIDE) -> list[float]:
     """Coarse samples: both ends, today's value and points between (geometric for positive
     ranges spanning more than a factor 20)."""
     import numpy as np
@@ -570,7 +592,7 @@ def _grid(item: LimitInput) -> list[float]:
         a, b = item.current, end
         if a == b:
             continue
-        n = GRID_POINTS_PER_SIDE + 2
+        n = per_side + 2
         if a > 0 and b > 0 and max(a, b) / min(a, b) > 20.0:
             values = np.geomspace(a, b, n)[1:-1]
         else:
@@ -661,7 +683,11 @@ def limits_of_input(case, item: LimitInput, criteria: list[Criterion]) -> tuple[
         names = ({v.name for v in case.vessels} if item.vessel_index is None
                  else {case.vessels[item.vessel_index].name})
         relevant = [c for c in criteria if c.vessel in names]
-    for x in _grid(item):
+    evaluate(item.current)
+    # Expensive screenings (a simulation at every point): both ends and today only; the
+    # verdicts are then taken as monotone between them.
+    sparse = evaluate.seconds > EXPENSIVE_SCREENING
+    for x in _grid(item, 0 if sparse else GRID_POINTS_PER_SIDE):
         evaluate(x)
     out = []
     for criterion in relevant:
