@@ -91,12 +91,24 @@ _LEGACY_VERDICTS = {
 
 
 def vessel_verdict(entry: dict, name: str) -> str:
-    """The per-vessel verdict word ``name`` (``decomposition_stability``, ``synthesis_cooling``)
-    of one vessel entry of the screening result.
+    """The per-vessel verdict word ``name`` of one vessel entry of the screening result.
 
     The one place that reads the vessel vocabulary: the screening's own key when it carries
     one, else the older status words mapped to it (``cannot conclude`` for anything unknown:
     fail closed).
+
+    Parameters
+    ----------
+    entry : dict
+        One member of ``results.vessels``. [JSON]
+    name : str
+        ``"decomposition_stability"`` or ``"synthesis_cooling"``. [-]
+
+    Returns
+    -------
+    str
+        ``recoverable``/``not recoverable``/``cannot conclude``, or
+        ``adequate``/``insufficient``/``cannot conclude``. [-]
     """
     if name in entry:
         return entry[name]
@@ -131,6 +143,16 @@ class LimitInput:
 
 def controllable_keys(case) -> list[str]:
     """Default inputs to vary: every controllable input the case has (vessel inputs per vessel).
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+
+    Returns
+    -------
+    list of str
+        Keys as for ``--vary`` (``vessel.N.KEY`` with several vessels). [-]
     """
     keys = ["process.temperature"]
     process = case.sections["process"]
@@ -252,6 +274,22 @@ def admissible_range(case, section, name, index, base_results) -> tuple[float, f
     From the schema bounds and plausibility limits, narrowed by the cross-field rules of the case:
     the process temperature at most the MTT; the coolant at least ``min_coolant_temperature``;
     the batch at most the vessel volume times the density.
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    section, name : str
+        Section and key of the input (``vessel``, ``coolant_temperature``). [-]
+    index : int or None
+        0-based vessel number, None for a case-wide input or every vessel. [-]
+    base_results : dict
+        ``results`` of today's screening (for the MTT). [JSON]
+
+    Returns
+    -------
+    (float, float, str)
+        Lower and upper end [SI unit of the input] and the basis of the range.
     """
     spec = SCHEMA[section][name]
     if spec.kind == "temperature":
@@ -285,6 +323,20 @@ def admissible_range(case, section, name, index, base_results) -> tuple[float, f
 
 def resolve_inputs(case, keys, base_results) -> list[LimitInput]:
     """The inputs to vary, with admissible ranges and today's values.
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    keys : iterable of str
+        Keys as for ``--vary``. [-]
+    base_results : dict
+        ``results`` of today's screening. [JSON]
+
+    Returns
+    -------
+    list of LimitInput
+        One per distinct key. [SI]
 
     Raises
     ------
@@ -337,7 +389,18 @@ class Criterion:
         return self.name
 
     def ok(self, row: dict) -> bool:
-        """True when the row meets the criterion; errors and missing figures fail (closed)."""
+        """True when the row meets the criterion; errors and missing figures fail (closed).
+
+        Parameters
+        ----------
+        row : dict
+            ``{"results": ...}`` of one screening or ``{"error": message}``. [JSON]
+
+        Returns
+        -------
+        bool
+            Whether the criterion is met. [-]
+        """
         if "error" in row:
             return False
         r = row["results"]
@@ -364,7 +427,18 @@ class Criterion:
         raise ValueError(self.name)  # pragma: no cover - programming error
 
     def undetermined(self, row: dict) -> str:
-        """Why the screening cannot conclude on this criterion at this point ("" if it can)."""
+        """Why the screening cannot conclude on this criterion at this point ("" if it can).
+
+        Parameters
+        ----------
+        row : dict
+            ``{"results": ...}`` of one screening or ``{"error": message}``. [JSON]
+
+        Returns
+        -------
+        str
+            The reason, empty when the screening concludes. [-]
+        """
         if "error" in row:
             return f"the screening rejects the input: {row['error']}"
         r = row["results"]
@@ -379,7 +453,18 @@ class Criterion:
         return ""
 
     def figures(self, row: dict) -> list:
-        """Continuous figures whose sign change marks the verdict change (secant guides)."""
+        """Continuous figures whose sign change marks the verdict change (secant guides).
+
+        Parameters
+        ----------
+        row : dict
+            ``{"results": ...}`` of one screening or ``{"error": message}``. [JSON]
+
+        Returns
+        -------
+        list of float or None
+            Figures in their JSON units (K, kW, m/s, kg, bar, -); None where not available.
+        """
         if "error" in row:
             return []
         r = row["results"]
@@ -465,7 +550,23 @@ def _vessel_entry(entries, name, name_key="name"):
 
 def criteria_for(case, base_results: dict, target_class: int, margin: float) -> list[Criterion]:
     """The criteria followed: class boundaries from today's class to the target, the onset
-    margin, and per vessel the verdicts the screening decides for it."""
+    margin, and per vessel the verdicts the screening decides for it.
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    base_results : dict
+        ``results`` of today's screening. [JSON]
+    target_class : int
+        Class to reach, 1..5. [-]
+    margin : float
+        Onset margin TD24 - MTSR to reach. [K]
+
+    Returns
+    -------
+    list of Criterion
+    """
     today = base_results.get("criticality_class")
     if today is None or int(today) <= target_class:
         ks = [target_class]
@@ -493,7 +594,18 @@ def screening_variant(case):
     """The case as the limits screen it: the deviation scenarios of ``[scenarios]`` are not
     criteria here (and are not rerun at the points), so only ``evaporation_check`` is kept; a
     scenario's own cross-check (e.g. dosing_temperature below the process temperature) then does
-    not reject points of the range."""
+    not reject points of the range.
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+
+    Returns
+    -------
+    screen.io.case.Case
+        The variant (the case itself without ``[scenarios]``).
+    """
     from screen.io.case import case_with_changes
 
     scenarios = case.sections.get("scenarios")
@@ -675,7 +787,22 @@ def _limits_of_criterion(evaluate, item: LimitInput, criterion: Criterion) -> li
 
 
 def limits_of_input(case, item: LimitInput, criteria: list[Criterion]) -> tuple[list, int]:
-    """All limits along one input: (list of Limit, number of screenings run)."""
+    """All limits along one input.
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    item : LimitInput
+        The input varied. [SI]
+    criteria : list of Criterion
+        Criteria followed (those the input cannot act on are skipped).
+
+    Returns
+    -------
+    (list of Limit, int)
+        The limits (SI values) and the number of screenings run. [-]
+    """
     evaluate = _Evaluator(case, item)
     relevant = criteria
     if item.section == "vessel" and case.sections.get("synthesis_kinetics") is None:
@@ -772,7 +899,18 @@ _SI_UNITS = {"temperature": "K", "time": "s", "mass": "kg",
 
 
 def limit_entry(limit: Limit) -> dict:
-    """One JSON-ready entry of ``results.limits``."""
+    """One JSON-ready entry of ``results.limits``.
+
+    Parameters
+    ----------
+    limit : Limit
+        A limit with SI values.
+
+    Returns
+    -------
+    dict
+        Values in the case file's unit (``unit``), see docs/limits.md. [JSON]
+    """
     item, criterion = limit.item, limit.criterion
     value = _from_si(limit.value, item)
     current = _from_si(item.current, item)
@@ -805,7 +943,20 @@ def limit_entry(limit: Limit) -> dict:
 
 
 def format_value(value, unit: str) -> str:
-    """A limit value with its unit, 4 significant digits (5 for temperatures)."""
+    """A limit value with its unit, 4 significant digits (5 for temperatures).
+
+    Parameters
+    ----------
+    value : float or None
+        The value. [unit]
+    unit : str
+        Its unit as the case file writes it. [-]
+
+    Returns
+    -------
+    str
+        ``"45.96 degC"``; ``"-"`` for None. [-]
+    """
     if value is None:
         return "-"
     digits = 5 if unit in ("degC", "degF", "K") and abs(value) >= 100 else 4
@@ -814,7 +965,18 @@ def format_value(value, unit: str) -> str:
 
 
 def limit_text(entry: dict) -> str:
-    """"KEY must stay below VALUE (today VALUE, margin VALUE)" or why there is no limit."""
+    """"KEY must stay below VALUE (today VALUE, margin VALUE)" or why there is no limit.
+
+    Parameters
+    ----------
+    entry : dict
+        An entry of ``results.limits`` (without ``text``). [JSON]
+
+    Returns
+    -------
+    str
+        The sentence. [-]
+    """
     key, unit = entry["key"], entry["unit"]
     today = format_value(entry["current_value"], unit)
     if entry["status"] == "not demonstrated":
@@ -849,7 +1011,25 @@ METHOD_TEXT = (
 def add_limits(case, result, vary=None, target_class: int = 2,
                margin: float = DEFAULT_ONSET_MARGIN) -> LimitsResult:
     """Find the limits and add them to ``result`` (``results.limits``, ``results.limits_basis``,
-    ``methods.limits``). Parameters as :func:`find_limits`; ``margin`` in [K]."""
+    ``methods.limits``).
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    result : screen.analyses.engine.ScreeningResult
+        Its screening, extended in place.
+    vary : list of str, optional
+        Keys to vary; default every controllable input. [-]
+    target_class : int
+        Class to reach, 1..5. [-]
+    margin : float
+        Onset margin TD24 - MTSR to reach. [K]
+
+    Returns
+    -------
+    LimitsResult
+    """
     found = find_limits(case, result, vary=vary, target_class=target_class, margin=margin)
     result.results["limits"] = found.entries
     result.results["limits_basis"] = {
@@ -873,7 +1053,20 @@ WINDOW_POINTS = 17
 
 
 def check_window_keys(case, keys) -> None:
-    """Both keys must be controllable inputs of the case and differ (``--window``)."""
+    """Both keys must be controllable inputs of the case and differ (``--window``).
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    keys : sequence of str
+        The two keys. [-]
+
+    Raises
+    ------
+    CaseError
+        Not two different controllable inputs of the case.
+    """
     if len(keys) != 2 or keys[0] == keys[1]:
         raise CaseError(f"{' '.join(keys)}: give two different inputs, e.g. "
                         f"--window process.temperature process.accumulation", key="--window")
@@ -977,7 +1170,24 @@ def operating_window(case, base_result, key_x: str, key_y: str, target_class: in
 
 def add_window(case, result, key_x: str, key_y: str, target_class: int = 2) -> dict:
     """Compute the operating window and keep it with the result (``curves["limits_window"]``
-    for the figure; ``results["limits_window"]`` a short JSON summary)."""
+    for the figure; ``results["limits_window"]`` a short JSON summary).
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case. [SI]
+    result : screen.analyses.engine.ScreeningResult
+        Its screening (with ``results.limits`` when sought), extended in place.
+    key_x, key_y : str
+        The two inputs (as for ``--vary``). [-]
+    target_class : int
+        Class whose edge the figure draws, 1..5. [-]
+
+    Returns
+    -------
+    dict
+        As :func:`operating_window`.
+    """
     window = operating_window(case, result, key_x, key_y, target_class)
     result.curves["limits_window"] = window
     result.results["limits_window"] = {
