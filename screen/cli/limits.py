@@ -11,7 +11,18 @@ from screen.cli.common import handle_errors, timestamp
 
 
 def parse_margin(text: str) -> float:
-    """``--margin`` as a temperature difference [K] (``"50 K"``; a bare number is K)."""
+    """``--margin`` as a temperature difference (``"50 K"``; a bare number is K).
+
+    Parameters
+    ----------
+    text : str
+        The option's value. [K]
+
+    Returns
+    -------
+    float
+        The margin. [K]
+    """
     from screen.errors import CaseError
     from screen.units import parse_quantity
 
@@ -27,6 +38,18 @@ def parse_margin(text: str) -> float:
 
 
 def parse_target_class(value) -> int:
+    """``--target-class`` checked to lie in 1..5.
+
+    Parameters
+    ----------
+    value : int
+        The option's value. [-]
+
+    Returns
+    -------
+    int
+        The class. [-]
+    """
     from screen.errors import CaseError
 
     if value is None or not 1 <= int(value) <= 5:
@@ -35,7 +58,19 @@ def parse_target_class(value) -> int:
 
 
 def limit_options(func):
-    """The options shared by ``limits``, ``check --limits`` and ``report --limits``."""
+    """The options of the limit search (``--target-class``, ``--vary``, ``--margin``,
+    ``--window``) added to a click command.
+
+    Parameters
+    ----------
+    func : callable
+        The command function.
+
+    Returns
+    -------
+    callable
+        The function with the options attached.
+    """
     options = [
         click.option("--target-class", "target_class", type=int, default=2, show_default=True,
                      help="Criticality class to reach (1..5)."),
@@ -54,7 +89,28 @@ def limit_options(func):
 
 
 def run_limits(case_file, overrides, target_class, vary, margin_text, window=None):
-    """Screen the case and add its limits (and, with ``window``, the operating window)."""
+    """Screen the case and add its limits (and, with ``window``, the operating window).
+
+    Parameters
+    ----------
+    case_file : str
+        The TOML case file.
+    overrides : tuple of str
+        ``--set KEY=VALUE`` what-if overrides.
+    target_class : int
+        Class to reach, 1..5. [-]
+    vary : tuple of str
+        Keys to vary; empty for every controllable input.
+    margin_text : str
+        Onset margin as written (``"50 K"``). [K]
+    window : tuple of str, optional
+        Two keys for the operating window.
+
+    Returns
+    -------
+    screen.analyses.engine.ScreeningResult
+        The screening with ``results.limits`` (and the window).
+    """
     from screen.io.case import load_case
     from screen.runs.limits import add_limits, add_window, check_window_keys
     from screen.runs.screening import screen_case
@@ -89,7 +145,35 @@ def limits_command(case_file, target_class, vary, margin, window, as_json, csv_p
                    figure_path, force, overrides):
     """Safe operating limits of CASE_FILE: for each controllable input, the value at which each
     verdict changes (class, vessel stability, synthesis cooling, barrier, relief pressure,
-    onset margin), with today's value and the margin."""
+    onset margin), with today's value and the margin.
+
+    \f
+
+    Parameters
+    ----------
+    case_file : str
+        CASE_FILE argument: the TOML case file.
+    target_class : int
+        ``--target-class``: class to reach (1..5).
+    vary : tuple of str
+        ``--vary KEY`` (repeatable); empty for every controllable input.
+    margin : str
+        ``--margin``: onset margin TD24 - MTSR to reach, e.g. ``"50 K"``.
+    window : tuple of str or None
+        ``--window KEY1 KEY2``: operating-window figure over two inputs.
+    as_json : bool
+        ``--json``: print one JSON object instead of text.
+    csv_path : str or None
+        ``--csv``: also write the limits as CSV.
+    pdf_path : str or None
+        ``--pdf``: also write the PDF summary with the limits block.
+    figure_path : str or None
+        ``--figure``: write the window figure alone (.svg or .pdf).
+    force : bool
+        ``--force``: overwrite existing output files.
+    overrides : tuple of str
+        ``--set KEY=VALUE`` what-if overrides.
+    """
     from screen.errors import CaseError
     from screen.io.fileio import check_writable
 
@@ -122,7 +206,17 @@ def limits_command(case_file, target_class, vary, margin, window, as_json, csv_p
 
 
 def write_limits_csv(data: dict, path, force: bool) -> None:
-    """The limits table as CSV through the one atomic writer; first line the caution comment."""
+    """The limits table as CSV through the one atomic writer; first line the caution comment.
+
+    Parameters
+    ----------
+    data : dict
+        The JSON result with ``results.limits``.
+    path : str
+        CSV file to write.
+    force : bool
+        Overwrite an existing file.
+    """
     import csv
     import io
 

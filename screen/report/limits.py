@@ -29,7 +29,19 @@ def _criterion_heading(entry: dict, current_class) -> str:
 
 
 def limit_lines(data: dict, width: int = 78) -> list[str]:
-    """The limits block as text lines (heading, grouped table, unrestricted inputs)."""
+    """The limits block as text lines (heading, grouped table, unrestricted inputs).
+
+    Parameters
+    ----------
+    data : dict
+        The JSON result (``results.limits``, ``results.limits_basis``).
+    width : int
+        Line width. [characters]
+
+    Returns
+    -------
+    list of str
+    """
     r = data["results"]
     entries = r.get("limits") or []
     basis = r.get("limits_basis") or {}
@@ -73,7 +85,19 @@ def limit_lines(data: dict, width: int = 78) -> list[str]:
 
 
 def format_limits(data: dict, width: int = 78) -> str:
-    """Terminal text of the ``limits`` command: title, the limits block, warnings, cautions."""
+    """Terminal text of the ``limits`` command: caution line, title, the limits block, cautions.
+
+    Parameters
+    ----------
+    data : dict
+        The JSON result (``results.limits``, ``results.limits_basis``).
+    width : int
+        Line width. [characters]
+
+    Returns
+    -------
+    str
+    """
     from screen.cautions import CAUTIONS, SHORT_CAUTION
 
     title = data.get("case", {}).get("title") or ""
@@ -94,7 +118,18 @@ def format_limits(data: dict, width: int = 78) -> str:
 
 
 def csv_rows(data: dict) -> list[dict]:
-    """One CSV row per entry of ``results.limits`` (columns :data:`CSV_COLUMNS`)."""
+    """One CSV row per entry of ``results.limits`` (columns :data:`CSV_COLUMNS`).
+
+    Parameters
+    ----------
+    data : dict
+        The JSON result.
+
+    Returns
+    -------
+    list of dict
+        Values in the case file's units (column ``unit``).
+    """
     rows = []
     for entry in data["results"].get("limits") or []:
         low, high = entry.get("range") or (None, None)
@@ -148,11 +183,16 @@ def window_figure(window: dict, vessels_numbered=None, caution: str | None = Non
     Parameters
     ----------
     window : dict
-        As built by :func:`screen.runs.limits.operating_window` (values in the case's units).
+        As built by :func:`screen.runs.limits.operating_window`. [case file units]
     vessels_numbered : list of str, optional
-        Vessel names in file order (for the V1, V2 labels).
+        Vessel names in file order (for the V1, V2 labels). [-]
     caution : str, optional
-        A caution line printed under the plot (standalone figure files).
+        A caution line printed under the plot (standalone figure files). [-]
+
+    Returns
+    -------
+    reportlab.graphics.shapes.Drawing
+        As wide as the text frame. [pt]
     """
     from reportlab.graphics.shapes import Drawing, Line, Rect
 
@@ -298,7 +338,17 @@ def _any_failing(per_vessel: dict):
 
 def save_window_figure(result, path, force: bool = False) -> None:
     """Write the operating-window figure alone (``.svg`` or ``.pdf``) through the atomic
-    writer, with the caution line under the plot."""
+    writer, with the caution line under the plot.
+
+    Parameters
+    ----------
+    result : screen.analyses.engine.ScreeningResult
+        With ``curves["limits_window"]``.
+    path : str
+        File to write (.svg or .pdf).
+    force : bool
+        Overwrite an existing file.
+    """
     import os
 
     from screen.cautions import SHORT_CAUTION
@@ -330,7 +380,26 @@ def save_window_figure(result, path, force: bool = False) -> None:
 
 def limits_pdf_block(results: dict, window, styles, counter, vessels_numbered=None) -> list:
     """The "limits" block of the PDF: the limits as text lines and, when computed, the
-    operating-window figure."""
+    operating-window figure.
+
+    Parameters
+    ----------
+    results : dict
+        ``results`` of the screening with ``limits``.
+    window : dict or None
+        ``curves["limits_window"]``.
+    styles : dict
+        Paragraph styles of the report.
+    counter : iterator
+        Figure numbers.
+    vessels_numbered : list of str, optional
+        Vessel names in file order.
+
+    Returns
+    -------
+    list
+        Flowables.
+    """
     from xml.sax.saxutils import escape
 
     from reportlab.platypus import XPreformatted
