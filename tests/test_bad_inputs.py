@@ -190,12 +190,12 @@ def test_huge_earlier_result(tmp_path):
 
 @pytest.mark.skipif(not os.path.exists("/dev/zero"), reason="needs /dev/zero")
 def test_endless_device_is_refused(tmp_path):
-    # /dev/zero reports size 0 and never ends: reading must be bounded.
-    assert "bytes" in _run_error(["check", "/dev/zero"])
-    assert "MB" in _run_error(["kinetics", "--peaks", "/dev/zero"])
+    # /dev/zero reports size 0 and never ends: only regular files are read (issue 14).
+    assert "a device, not a regular file" in _run_error(["check", "/dev/zero"])
+    assert "a device, not a regular file" in _run_error(["kinetics", "--peaks", "/dev/zero"])
     link = tmp_path / "zero.json"
     link.symlink_to("/dev/zero")
-    assert "bytes" in _run_error(["compare", CATALOGUE / "valid_base.toml", link])
+    assert "a device" in _run_error(["compare", CATALOGUE / "valid_base.toml", link])
 
 
 def test_existing_outputs_are_not_overwritten_without_force(tmp_path):

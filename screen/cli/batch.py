@@ -5,7 +5,9 @@ the command group; :mod:`screen.cli`, pandas and the engine are imported inside 
 
 Exit status: 0 when every case was screened; 1 when some rows carry an error (0 with
 ``--allow-errors``); 2 for bad arguments (no case files found, a path that does not exist, an
-output that exists without ``--force``, an unusable ``--scheduler``).
+output that exists without ``--force``, an unusable ``--scheduler``); 130 when interrupted by
+Ctrl-C (SIGINT), 143 by SIGTERM, 129 by SIGHUP (the rows finished so far are written to the CSV,
+marked as partial).
 """
 
 from __future__ import annotations
@@ -114,6 +116,24 @@ def format_portfolio(frame, files_count: int) -> str:
     return "\n".join(lines)
 
 
+def _write_partial_csv(frame, csv_path, force, files, exc) -> None:
+    """The rows finished before an interruption, under a first line marking the table partial."""
+    from screen.io.fileio import Interrupted, write_atomic
+
+    import signal
+
+    signal_name = (signal.Signals(exc.signum).name if isinstance(exc, Interrupted)
+                   else "Ctrl-C (SIGINT)")
+    finished = frame["file"].nunique()
+    head = (f"# PARTIAL: interrupted by {signal_name}; {finished} of {len(files)} case files "
+            f"screened, the others are missing from this table\n")
+    body = frame.to_csv(index=False, lineterminator="\n")
+    try:
+        write_atomic(csv_path, (head + body).encode("utf-8"), force=force, inputs=files)
+    except Exception:  # noqa: BLE001 - the interruption is what gets reported
+        pass
+
+
 @click.command("batch")
 @click.argument("paths", nargs=-1, required=True, type=click.Path(), metavar="DIR-or-FILES...")
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False), default=None,
@@ -129,16 +149,22 @@ def format_portfolio(frame, files_count: int) -> str:
               help="What-if override applied to every case. Repeatable.")
 @click.option("--recursive", "-r", is_flag=True, help="Search directories recursively.")
 @click.option("--force", is_flag=True, help="Overwrite an existing CSV file and PDFs.")
+@click.option("--case-timeout", "case_timeout", type=click.FloatRange(min=0, min_open=True),
+              default=None, metavar="SECONDS",
+              help="Time limit of one case; a case over it gets an error row and the others go "
+                   "on. Default 300 s (not applied with --scheduler).")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
               help="Run the cases on a dask.distributed cluster (tcp://HOST:PORT); needs "
                    "pip install 'runaway-screen[cluster]'.")
 def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, overrides,
-                  recursive, force, scheduler):
+                  recursive, force, case_timeout, scheduler):
     """Screen many case files in parallel; one table row per case and vessel.
 
     DIR-or-FILES are case files or folders of *.toml case files. A case that cannot be
     screened gives a row with its error and never stops the batch. Exit status: 0 all cases
-    screened; 1 some rows have errors (0 with --allow-errors); 2 bad arguments.
+    screened; 1 some rows have errors (0 with --allow-errors); 2 bad arguments; 130
+    interrupted (Ctrl-C; 143 SIGTERM, 129 SIGHUP), with the finished rows in the CSV marked
+    as partial.
 
     \f
 
@@ -162,6 +188,8 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
         ``-r/--recursive``: search directories recursively.
     force : bool
         ``--force``: overwrite an existing CSV file and PDFs.
+    case_timeout : float or None
+        ``--case-timeout``: time limit of one case [s] (None: the default, 300 s).
     scheduler : str or None
         ``--scheduler``: address of a dask.distributed scheduler.
     """
@@ -176,13 +204,16 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
         from screen.cautions import CAUTIONS
         from screen.cli.common import timestamp
         from screen.errors import CaseError
-        from screen.io.fileio import check_writable, write_atomic
-        from screen.runs.portfolio import collect_case_files, screen_portfolio
+        from screen.io.fileio import check_writable, require_regular_file, write_atomic
+        from screen.runs.portfolio import (DEFAULT_CASE_TIMEOUT_S, collect_case_files,
+                                           screen_portfolio)
 
         for item in paths:
             if not os.path.exists(item):
                 raise CaseError("does not exist; give case files or folders of case files",
                                 path=item)
+            if not os.path.isdir(item):  # a FIFO or a device would block or never end
+                require_regular_file(item, CaseError, "TOML case file or a folder of them")
         files = collect_case_files(paths, recursive=recursive)
         if not files:
             raise CaseError("no case files (*.toml) found in " + ", ".join(paths)
@@ -190,10 +221,13 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
         if scheduler and workers is not None:
             raise CaseError("give --workers or --scheduler, not both", "--workers")
         if csv_path:
-            check_writable(csv_path, force)  # fail before the computation, not after it
+            check_writable(csv_path, force, files)  # fail before the computation, not after
         if pdf_dir is not None and not os.path.isdir(pdf_dir):
             raise CaseError("is not an existing directory; create it first", "--pdf-dir",
                             pdf_dir)
+        if pdf_dir is not None and not os.access(pdf_dir, os.W_OK):
+            raise CaseError("directory is not writable; make it writable (chmod u+w) or choose "
+                            "another --pdf-dir", "--pdf-dir", pdf_dir)
         for text in overrides:  # a malformed --set is a bad argument (exit 2), not 80 row errors
             from screen.io.case import SCHEMA
 
@@ -204,19 +238,26 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
                 raise CaseError(f"--set {text!r}: expected SECTION.KEY=VALUE with a key of the "
                                 f"case schema, e.g. 'process.temperature=70 degC'", "--set")
         executor = _connect_scheduler(scheduler) if scheduler else None
+        limit = None if executor is not None else (case_timeout or DEFAULT_CASE_TIMEOUT_S)
         from screen.progress import ProgressBar
 
         try:
             with ProgressBar(len(files), "Screening", enabled=not as_json, unit="cases") as bar:
                 frame = screen_portfolio(files, workers=workers, executor=executor,
                                          overrides=overrides, pdf_dir=pdf_dir, force=force,
-                                         generated_at=timestamp(), progress=bar)
+                                         generated_at=timestamp(), progress=bar,
+                                         case_timeout=limit)
+        except BaseException as exc:
+            partial = getattr(exc, "partial_frame", None)
+            if csv_path and partial is not None and not isinstance(exc, Exception):
+                _write_partial_csv(partial, csv_path, force, files, exc)
+            raise
         finally:
             if executor is not None:
                 executor.close()
         if csv_path:
             write_atomic(csv_path, frame.to_csv(index=False, lineterminator="\n").encode("utf-8"),
-                         force=force)
+                         force=force, inputs=files)
         error_count = int(frame["error"].notna().sum())
         if as_json:
             payload = {"files": len(files), "rows": _json_rows(frame), "rows_with_errors":

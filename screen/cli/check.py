@@ -52,7 +52,7 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed,
     if pdf_path:
         from screen.report import check_output_path
 
-        check_output_path(str(pdf_path), force)  # fail before the computation, not after it
+        check_output_path(str(pdf_path), force, inputs=[case_file])  # fail before the computation, not after it
     result = run_check(case_file, overrides)
     if samples is not None:
         from screen.runs.uncertainty import add_uncertainty
@@ -66,7 +66,8 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed,
     if pdf_path:
         from screen.report import write_report
 
-        write_report(result, pdf_path, force=force, generated_at=data["generated_at"])
+        write_report(result, pdf_path, force=force, generated_at=data["generated_at"],
+                     inputs=[case_file])
     if as_json:
         click.echo(json.dumps(data, indent=2, ensure_ascii=False))
     else:

@@ -173,7 +173,7 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
         if csv_path:
             from screen.io.fileio import check_writable
 
-            check_writable(csv_path, force)  # fail before the computation, not after it
+            check_writable(csv_path, force, [case_file])  # fail before the computation
         from screen.progress import ProgressBar
 
         total = 1
@@ -182,7 +182,7 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
         with ProgressBar(total, "Sweep", enabled=not as_json, unit="points") as bar:
             rows, flips = run_sweep(case, variations, progress=bar)
         if csv_path:
-            _write_csv(rows, csv_path, force, variations)
+            _write_csv(rows, csv_path, force, variations, inputs=[case_file])
         if as_json:
             payload = {
                 "case": {"title": case.title, "path": case.path, "sha256": case.sha256},
@@ -249,7 +249,7 @@ def _format_sweep(case, variations, rows, flips, to_display):
     return "\n".join(lines)
 
 
-def _write_csv(rows, path, force, variations=()):
+def _write_csv(rows, path, force, variations=(), inputs=()):
     import csv
     import io
 
@@ -267,4 +267,4 @@ def _write_csv(rows, path, force, variations=()):
     writer.writeheader()
     for row in rows:
         writer.writerow(row)
-    write_atomic(path, buffer.getvalue().encode("utf-8"), force=force)
+    write_atomic(path, buffer.getvalue().encode("utf-8"), force=force, inputs=inputs)

@@ -118,9 +118,9 @@ def _run(trace, initial_mass, specific_heat, limiting_amount, feed_temperature,
     cp_feed = (positive_quantity(feed_specific_heat, "specific_heat", "--feed-specific-heat")
                if feed_specific_heat is not None else None)
     if output:
-        check_writable(output, force)  # fail before the work, leave nothing behind
+        check_writable(output, force, [trace])  # fail before the work, leave nothing behind
     result = analyse_heat_flow(trace, m0, cp, amount, t_feed, cp_feed, baseline)
     deliver(result, to_dict=present.result_to_dict, summary=present.format_summary,
             fragment=present.case_fragment, write_pngs=present.write_pngs, output=output,
             force=force, png_dir=png_dir, as_json=as_json,
-            written_what="[synthesis] and [process] keys")
+            written_what="[synthesis] and [process] keys", inputs=[trace])

@@ -166,7 +166,8 @@ def _run_kinetics(thermograms, peaks, sample_mass, heating_rate, exo_up, baselin
     )
     deliver(result, to_dict=result_to_dict, summary=format_summary,
             fragment=decomposition_toml, write_pngs=write_pngs, output=output, force=force,
-            png_dir=png_dir, as_json=as_json, written_what="[decomposition] section")
+            png_dir=png_dir, as_json=as_json, written_what="[decomposition] section",
+            inputs=list(thermograms) + ([peaks] if peaks else []))
 
 
 def _reject(option, message):
@@ -211,7 +212,7 @@ def _run_adiabatic(params, given):
     deliver(result, to_dict=present.result_to_dict, summary=present.format_summary,
             fragment=present.decomposition_toml, write_pngs=present.write_pngs, output=output,
             force=force, png_dir=params["png_dir"], as_json=params["as_json"],
-            written_what="[decomposition] section")
+            written_what="[decomposition] section", inputs=[params["adiabatic"]])
 
 
 def _rate(text):

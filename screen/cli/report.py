@@ -83,7 +83,8 @@ def report_command(case_file, output, force, overrides, since_path, with_limits,
         from screen.progress import ProgressBar
         from screen.report import check_output_path, write_report
 
-        check_output_path(str(output), force)  # fail before the computation, not after it
+        inputs = [case_file] + ([since_path] if since_path else [])
+        check_output_path(str(output), force, inputs)  # fail before the computation, not after
         if window and not with_limits:
             from screen.errors import CaseError
 
@@ -102,7 +103,7 @@ def report_command(case_file, output, force, overrides, since_path, with_limits,
                 result = run_check(case_file, overrides)
             bar.advance()
             pages = write_report(result, output, force=force, generated_at=timestamp(),
-                                 since=since)
+                                 since=since, inputs=inputs)
             bar.advance()
         klass = result.results.get("criticality_class")
         verdict = "no class: cannot conclude" if klass is None else f"criticality class {klass}"

@@ -136,6 +136,9 @@ def read_case_text(path: str) -> tuple[dict, str]:
                                     "cases/)", path=str(path))
     if os.path.isdir(path):
         raise CaseError("is a directory; give the path of a TOML case file", path=str(path))
+    from screen.io.fileio import require_regular_file
+
+    require_regular_file(path, CaseError, "TOML case file")  # a FIFO would block for ever
     try:
         size = os.path.getsize(path)
         if size > MAX_CASE_BYTES:

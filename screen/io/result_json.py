@@ -41,6 +41,9 @@ def read_result_json(path) -> dict:
                             path=path)
     if os.path.isdir(path):
         raise DataFileError(f"is a directory; {hint}", path=path)
+    from screen.io.fileio import require_regular_file
+
+    require_regular_file(path, DataFileError, "case file or an earlier --json result")
     try:
         with open(path, "rb") as handle:  # bounded: a device such as /dev/zero never ends
             raw = handle.read(MAX_RESULT_BYTES + 1)

@@ -197,6 +197,9 @@ def _decode(path):
         raise DataFileError("file not found; check the path", path=str(path))
     if p.is_dir():
         raise DataFileError("is a directory, not a CSV file", path=str(path))
+    from screen.io.fileio import require_regular_file
+
+    require_regular_file(p, DataFileError, "CSV file")  # a FIFO would block for ever
     try:
         # Bounded read: a device or pipe (/dev/zero) may never end.
         with open(p, "rb") as handle:

@@ -18,7 +18,7 @@ from screen.errors import OutputError
 __all__ = ["check_output_path", "write_report"]
 
 
-def check_output_path(path: str, force: bool) -> str:
+def check_output_path(path: str, force: bool, inputs=()) -> str:
     """Raise OutputError unless ``path`` may be written; returns its directory.
 
     Parameters
@@ -27,18 +27,15 @@ def check_output_path(path: str, force: bool) -> str:
         Target file.
     force : bool
         An existing file may be replaced.
+    inputs : iterable of str
+        Files the command reads; the PDF must be none of them (even with ``force``).
     """
+    from screen.io.fileio import check_writable
+
     if os.path.isdir(path):
         raise OutputError("is a directory; give a file name for the PDF", path=path)
-    if os.path.lexists(path) and not force:
-        raise OutputError("exists; use --force to overwrite it or choose another name",
-                          path=path)
-    directory = os.path.dirname(os.path.abspath(path))
-    if not os.path.isdir(directory):
-        raise OutputError(f"directory {directory} does not exist; create it first", path=path)
-    if not os.access(directory, os.W_OK):
-        raise OutputError(f"directory {directory} is not writable", path=path)
-    return directory
+    check_writable(path, force, inputs)
+    return os.path.dirname(os.path.abspath(path))
 
 
 def _default_timestamp() -> str:
@@ -48,7 +45,7 @@ def _default_timestamp() -> str:
 
 
 def write_report(result, path, force: bool = False, generated_at: str | None = None,
-                 since: dict | None = None) -> int:
+                 since: dict | None = None, inputs=()) -> int:
     """Write the PDF screening summary of ``result`` to ``path``.
 
     The PDF is laid out in memory, written to a temporary file in the target directory and
@@ -67,6 +64,8 @@ def write_report(result, path, force: bool = False, generated_at: str | None = N
         Timestamp printed in the report (ISO 8601); the current UTC time if not given.
     since : dict, optional
         An earlier JSON result (``ScreeningResult.to_json_dict``) for the "changes since" table.
+    inputs : iterable of str or path-like
+        Files the command read (case, earlier result); the PDF is never written over one.
 
     Returns
     -------
@@ -80,67 +79,16 @@ def write_report(result, path, force: bool = False, generated_at: str | None = N
         writing failed.
     """
     import io
-    import tempfile
+
+    from screen.io.fileio import write_atomic
 
     path = os.fspath(path)
-    directory = check_output_path(path, force)
+    check_output_path(path, force, inputs)
     data = result.to_json_dict(generated_at=generated_at or _default_timestamp())
 
     from screen.report.pdf import build_pdf
 
     buffer = io.BytesIO()
     pages = build_pdf(result, data, buffer, since=since)
-    payload = buffer.getvalue()
-
-    directory = check_output_path(path, force)  # the situation may have changed while laying out
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=f".{os.path.basename(path)}.",
-                                             suffix=".tmp", dir=directory)
-    except OSError as exc:
-        raise OutputError(f"cannot create a file in {directory} ({exc.strerror})",
-                          path=path) from None
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            stream.write(payload)
-            stream.flush()
-            os.fsync(stream.fileno())
-        os.chmod(temporary, 0o666 & ~_umask())
-        _move_into_place(temporary, path, force)
-    except BaseException as exc:
-        try:
-            os.unlink(temporary)
-        except OSError:
-            pass
-        if isinstance(exc, OutputError):
-            raise
-        if isinstance(exc, OSError):
-            raise OutputError(f"cannot write the PDF ({exc.strerror or exc})", path=path) from None
-        raise
+    write_atomic(path, buffer.getvalue(), force=force, inputs=inputs)
     return pages
-
-
-def _move_into_place(temporary: str, path: str, force: bool) -> None:
-    """Rename the finished file onto ``path``; without ``force`` never replace a file."""
-    if force:
-        os.replace(temporary, path)
-        return
-    try:
-        # A hard link fails if the name appeared meanwhile: no overwrite even in a race.
-        os.link(temporary, path)
-    except FileExistsError:
-        raise OutputError("exists; use --force to overwrite it or choose another name",
-                          path=path) from None
-    except OSError:
-        # File systems without hard links: the check above is the best we can do.
-        if os.path.lexists(path):
-            raise OutputError("exists; use --force to overwrite it or choose another name",
-                              path=path) from None
-        os.replace(temporary, path)
-        return
-    os.unlink(temporary)
-
-
-def _umask() -> int:
-    current = os.umask(0)
-    os.umask(current)
-    return current

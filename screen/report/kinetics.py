@@ -453,13 +453,16 @@ def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)"):
         target.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise OutputError(f"cannot create the folder ({exc.strerror})", path=str(target)) from None
+    import io
+
+    from screen.io.fileio import write_atomic
+
     written = []
     for name, fig in figures_by_name.items():
         path = target / f"{name}.png"
-        try:
-            fig.savefig(path, dpi=120)
-        except OSError as exc:
-            raise OutputError(f"cannot be written ({exc.strerror})", path=str(path)) from None
+        buffer = io.BytesIO()
+        fig.savefig(buffer, format="png", dpi=120)
+        write_atomic(path, buffer.getvalue(), force=True)  # the one writer; figures are replaced
         written.append(path)
     return written
 
