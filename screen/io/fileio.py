@@ -79,7 +79,13 @@ def require_regular_file(path, error_class=ScreenError, what: str = "file") -> N
 
 
 def same_file(first, second) -> bool:
-    """True if both paths name the same file (same inode, or the same resolved path)."""
+    """True if both paths name the same file (same inode, or the same resolved path).
+
+    Parameters
+    ----------
+    first, second : str or path-like
+        The two paths; either may not exist yet.
+    """
     first, second = os.fspath(first), os.fspath(second)
     try:
         return os.path.samefile(first, second)
