@@ -58,14 +58,26 @@ _GRADE_SUFFIX = re.compile(r"^(.*?)\s*\((holds|doubtful|fails)\)\s*$", re.DOTALL
 
 
 def verdict_word(text) -> str:
-    """A verdict in capitals (``holds`` -> ``HOLDS``); ``n/a`` for None."""
+    """A verdict in capitals (``holds`` -> ``HOLDS``); ``n/a`` for None.
+
+    Parameters
+    ----------
+    text : str or None
+        Verdict word.
+    """
     if text is None or text == "":
         return "n/a"
     return str(text).upper()
 
 
 def split_grade(reason: str) -> tuple[str, str | None]:
-    """``"condenser: ... (holds)"`` -> (``"condenser: ..."``, ``"holds"``); grade None if absent."""
+    """``"condenser: ... (holds)"`` -> (``"condenser: ..."``, ``"holds"``); grade None if absent.
+
+    Parameters
+    ----------
+    reason : str
+        Reason line ending in a grade in parentheses.
+    """
     match = _GRADE_SUFFIX.match(str(reason))
     if match is None:
         return str(reason), None
@@ -100,6 +112,13 @@ def format_probability(value, samples=None) -> str:
     of the rule of three, ``< 3/n`` or ``> 1 - 3/n`` (Hanley & Lippman-Hand, JAMA 249 (1983)
     1743), never as a bare 0: no sample in the class does not make it impossible. Without
     ``samples``, ``0`` and ``1``.
+
+    Parameters
+    ----------
+    value : float or None
+        Probability. [-]
+    samples : int, optional
+        Number of Monte Carlo samples behind it.
     """
     if not isinstance(value, (int, float)) or isinstance(value, bool):
         return "n/a"
@@ -161,7 +180,17 @@ def _pointer(name, styles):
 def optional_blocks(result, styles, counter):
     """Blocks of the optional analyses that the result carries, in :data:`OPTIONAL_BLOCKS`
     order, then any other member with ``summary_lines``. Never raises for a block: a block that
-    cannot be laid out falls back to its summary lines or to a sentence that says so."""
+    cannot be laid out falls back to its summary lines or to a sentence that says so.
+
+    Parameters
+    ----------
+    result : dict
+        The ``results`` table of the JSON-ready result.
+    styles : dict
+        Paragraph and table styles of the report.
+    counter : FigureCounter
+        Numbers the figures of the report.
+    """
     from reportlab.platypus import CondPageBreak
 
     story = []
@@ -238,7 +267,19 @@ SIMULATION_MODE_ROWS = (
 
 
 def simulation_block(block, curve, styles, counter):
-    """Figure of the run (temperature and MTSR(t)), key-figures table, dosing warnings."""
+    """Figure of the run (temperature and MTSR(t)), key-figures table, dosing warnings.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.simulation`` (temperatures in degC, times in h).
+    curve : dict or None
+        ``curves["simulation"]`` of the result, or None.
+    styles : dict
+        Paragraph and table styles of the report.
+    counter : FigureCounter
+        Numbers the figures of the report.
+    """
     from reportlab.platypus import KeepTogether
 
     batch = block.get("mode") == "batch"
@@ -340,7 +381,17 @@ def simulation_block(block, curve, styles, counter):
 
 
 def simulation_figure(curve, styles, counter):
-    """Normal-operation temperature and MTSR(t) over the run, when the simulation gives them."""
+    """Normal-operation temperature and MTSR(t) over the run, when the simulation gives them.
+
+    Parameters
+    ----------
+    curve : dict or None
+        ``curves["simulation"]`` of the result, or None.
+    styles : dict
+        Paragraph and table styles of the report.
+    counter : FigureCounter
+        Numbers the figures of the report.
+    """
     data = figure_data.simulation_from_curve(curve)
     if data is None:
         return []
@@ -361,6 +412,11 @@ def barrier_verdict_lines(block) -> list[str]:
     """Page-1 lines (markup), one per vessel: the barrier verdict and its governing reason.
 
     Empty when the barrier was not assessed or the block is not a dict.
+
+    Parameters
+    ----------
+    block : dict or None
+        ``results.barrier`` of the JSON-ready result.
     """
     if not isinstance(block, dict) or not block.get("assessed"):
         return []
@@ -390,7 +446,15 @@ def barrier_verdict_lines(block) -> list[str]:
 
 
 def barrier_block(block, styles):
-    """Table per vessel (heat, vapour, condenser, vapour line, solvent, verdict) and reasons."""
+    """Table per vessel (heat, vapour, condenser, vapour line, solvent, verdict) and reasons.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.barrier`` of the JSON-ready result.
+    styles : dict
+        Paragraph and table styles of the report.
+    """
     from reportlab.platypus import KeepTogether
 
     if not block.get("assessed"):
@@ -497,7 +561,15 @@ PRESSURE_VERDICTS = {"no set pressure": "NO SET PRESSURE", "not assessed": "NOT 
 
 
 def pressure_block(block, styles):
-    """Vapour pressures at the key temperatures and the closed-vessel pressure per vessel."""
+    """Vapour pressures at the key temperatures and the closed-vessel pressure per vessel.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.pressure`` of the JSON-ready result.
+    styles : dict
+        Paragraph and table styles of the report.
+    """
     from reportlab.platypus import KeepTogether, Spacer
 
     story = []
@@ -600,6 +672,11 @@ def scenario_cells(row) -> list[str]:
 
     Name, MTSR [°C], change [K], TMRad at MTSR [h], TMRad ratio, class, class change, barrier
     verdict, barrier change. Used by the table and by the tests.
+
+    Parameters
+    ----------
+    row : dict
+        One scenario of ``results.scenarios``.
     """
     base = row.get("key") == "base"
     klass = row.get("criticality_class")
@@ -649,7 +726,15 @@ def _scenario_is_worse(row, base) -> bool:
 
 
 def scenarios_block(block, styles):
-    """Base case against each deviation: MTSR, TMRad at MTSR, class, barrier, and the changes."""
+    """Base case against each deviation: MTSR, TMRad at MTSR, class, barrier, and the changes.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.scenarios`` of the JSON-ready result.
+    styles : dict
+        Paragraph and table styles of the report.
+    """
     from reportlab.platypus import KeepTogether
 
     if block.get("run") is False:
@@ -739,7 +824,21 @@ def _percentile(spread, key, formatter):
 
 
 def uncertainty_block(block, curve, results, styles, counter):
-    """Percentiles, class probabilities, the uncertain inputs and the sensitivity bar chart."""
+    """Percentiles, class probabilities, the uncertain inputs and the sensitivity bar chart.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.uncertainty`` of the JSON-ready result.
+    curve : dict or None
+        ``curves["uncertainty"]``, or None.
+    results : dict
+        The ``results`` table (nominal figures).
+    styles : dict
+        Paragraph and table styles of the report.
+    counter : FigureCounter
+        Numbers the figures of the report.
+    """
     from reportlab.platypus import KeepTogether
 
     story = []
@@ -857,7 +956,17 @@ def uncertainty_block(block, curve, results, styles, counter):
 
 def sensitivity_figure(curve, styles, counter):
     """Bar chart of the sensitivity ranking from ``curves["uncertainty"]``: ``names`` with
-    ``values`` (and optionally ``values_tmrad``), or ``{"sensitivity": {input: value}}``."""
+    ``values`` (and optionally ``values_tmrad``), or ``{"sensitivity": {input: value}}``.
+
+    Parameters
+    ----------
+    curve : dict or None
+        ``curves["uncertainty"]``, or None.
+    styles : dict
+        Paragraph and table styles of the report.
+    counter : FigureCounter
+        Numbers the figures of the report.
+    """
     data = figure_data.sensitivity_from_curve(curve)
     if data is None:
         return []
@@ -883,7 +992,15 @@ def sensitivity_figure(curve, styles, counter):
 
 def generic_block(block, styles):
     """A result member without a dedicated layout: its summary lines (as printed by ``check``)
-    and its method or reason; all scalar figures only when it has no summary lines."""
+    and its method or reason; all scalar figures only when it has no summary lines.
+
+    Parameters
+    ----------
+    block : dict
+        A member of ``results`` without a dedicated layout.
+    styles : dict
+        Paragraph and table styles of the report.
+    """
     from reportlab.platypus import XPreformatted
 
     story = []

@@ -47,7 +47,13 @@ class FigureData:
 
 
 def criticality(result) -> FigureData:
-    """The criticality temperature scale (T_p, MTSR, MTT, TD24, TD8, final temperature)."""
+    """The criticality temperature scale (T_p, MTSR, MTT, TD24, TD8, final temperature).
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    """
     results = result.results
     if results.get("criticality_class") is None:
         label = "no criticality class: cannot conclude without decomposition kinetics"
@@ -60,7 +66,13 @@ def criticality(result) -> FigureData:
 
 
 def tmrad(result) -> FigureData:
-    """TMRad against the start temperature, with the reported points at T_p and MTSR."""
+    """TMRad against the start temperature, with the reported points at T_p and MTSR.
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    """
     results = result.results
     temps = result.curves["temperatures_K"]
     grid, tmr = result.curves["tmrad_curve"]
@@ -83,6 +95,11 @@ def simulated_courses(result):
     Returns a list of (time after the failure [s], temperature [K], failure time [s] or None,
     feed mode): the feed stopped first, then the feed continuing when the simulation gives it.
     Only the arrays named for the course after the failure are used (never the normal run).
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
     """
     import numpy as np
 
@@ -114,6 +131,11 @@ def adiabatic_course(result):
     decomposition from MTSR (the screening course, without the simulation).
 
     Computed once per result and kept in ``result.curves["adiabatic_course"]``.
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
 
     Raises
     ------
@@ -169,6 +191,11 @@ def course(result) -> FigureData:
     """Temperature course after a cooling failure: simulated when the case has a simulation,
     else T_p -> MTSR at once and the adiabatic decomposition from MTSR.
 
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+
     Raises
     ------
     ScreenError
@@ -202,20 +229,38 @@ def course(result) -> FigureData:
 
 
 def semenov(result) -> list[FigureData]:
-    """One Semenov diagram per vessel, in the order of the vessels."""
+    """One Semenov diagram per vessel, in the order of the vessels.
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    """
     curves = (result.curves.get("vessels") if isinstance(result.curves, dict) else None) or []
     return [FigureData("semenov", "semenov_diagram", {"curve": curve},
                        {"vessel": curve.get("name", "")}) for curve in curves]
 
 
 def simulation(result) -> FigureData | None:
-    """Normal-operation temperature and MTSR(t) over the run, when the simulation gives them."""
+    """Normal-operation temperature and MTSR(t) over the run, when the simulation gives them.
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    """
     curve = result.curves.get("simulation") if isinstance(result.curves, dict) else None
     return simulation_from_curve(curve)
 
 
 def simulation_from_curve(curve) -> FigureData | None:
-    """Run-profile data from ``curves["simulation"]`` (None without a usable run)."""
+    """Run-profile data from ``curves["simulation"]`` (None without a usable run).
+
+    Parameters
+    ----------
+    curve : dict or None
+        ``curves["simulation"]`` of a result (SI arrays), or None.
+    """
     if not isinstance(curve, dict):
         return None
     time = curve.get("time_s")
@@ -232,14 +277,26 @@ def simulation_from_curve(curve) -> FigureData | None:
 
 
 def sensitivity(result) -> FigureData | None:
-    """The sensitivity ranking of the Monte Carlo run (``curves["uncertainty"]``), if any."""
+    """The sensitivity ranking of the Monte Carlo run (``curves["uncertainty"]``), if any.
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    """
     curve = result.curves.get("uncertainty") if isinstance(result.curves, dict) else None
     return sensitivity_from_curve(curve)
 
 
 def sensitivity_from_curve(curve) -> FigureData | None:
     """Bar-chart data from ``curves["uncertainty"]``: ``names`` with ``values`` (and optionally
-    ``values_tmrad``), or ``{"sensitivity": {input: value}}``, or ``[(input, value)]``."""
+    ``values_tmrad``), or ``{"sensitivity": {input: value}}``, or ``[(input, value)]``.
+
+    Parameters
+    ----------
+    curve : dict, list or None
+        ``curves["uncertainty"]`` of a result, or None.
+    """
     names = values = second = None
     label = "sensitivity [-]"
     if isinstance(curve, dict):
@@ -268,7 +325,13 @@ def sensitivity_from_curve(curve) -> FigureData | None:
 
 def available(result) -> list[str]:
     """Names of the figures this result can draw (``semenov`` once per vessel: ``semenov``,
-    ``semenov:2``, ...)."""
+    ``semenov:2``, ...).
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    """
     names = ["criticality", "tmrad", "course"]
     count = len(semenov(result))
     names += ["semenov" if index == 1 else f"semenov:{index}" for index in range(1, count + 1)]
@@ -281,6 +344,13 @@ def available(result) -> list[str]:
 
 def figure_data(result, name: str) -> FigureData:
     """The data of the figure ``name`` (see :func:`available`).
+
+    Parameters
+    ----------
+    result : ScreeningResult
+        Result of the engine (figures in SI, curves in ``result.curves``).
+    name : str
+        Figure name, e.g. ``criticality``, ``tmrad``, ``semenov:2``.
 
     Raises
     ------

@@ -52,7 +52,13 @@ def _finite(value):
 
 def draw(data):
     """The reportlab drawing of one figure's data (a :class:`screen.report.figure_data.FigureData`:
-    the drawing function named by ``data.drawing`` called with ``data.arguments``)."""
+    the drawing function named by ``data.drawing`` called with ``data.arguments``).
+
+    Parameters
+    ----------
+    data : FigureData
+        Figure data: drawing name and its keyword arguments.
+    """
     if data.drawing not in DRAWINGS:
         raise ValueError(f"no drawing {data.drawing!r}")
     return globals()[data.drawing](**data.arguments)  # looked up now: patchable in tests

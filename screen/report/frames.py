@@ -13,7 +13,15 @@ from typing import Any
 
 
 def with_attrs(frame, **extra):
-    """Put the cautions, the tool name and version (and ``extra``) into ``frame.attrs``."""
+    """Put the cautions, the tool name and version (and ``extra``) into ``frame.attrs``.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Table to label (changed in place and returned).
+    **extra
+        Further ``attrs`` entries.
+    """
     from screen import __version__
     from screen.cautions import CAUTIONS
 
@@ -32,6 +40,13 @@ def scalar_figures(results: dict, prefix: str = "") -> dict[str, Any]:
     """The scalar members of ``results``; members of nested tables as ``"table.key"``.
 
     Lists (vessels, scenario rows, ...) are left out: they have tables of their own.
+
+    Parameters
+    ----------
+    results : dict
+        The ``results`` table of a JSON-ready result.
+    prefix : str
+        Key prefix of nested members ('' at the top).
     """
     flat: dict[str, Any] = {}
     for key, value in results.items():
@@ -132,6 +147,17 @@ def compare_frame(old: dict, new: dict, input_changes, result_changes):
 
     Columns: ``kind`` ("input" or "result"), ``key``, ``old``, ``new``, ``direction``,
     ``delta`` (numbers only) and ``is_verdict``; ``attrs["verdict_changed"]``.
+
+    Parameters
+    ----------
+    old : dict
+        Earlier JSON-ready result.
+    new : dict
+        Later JSON-ready result.
+    input_changes : list of Change
+        Changed inputs.
+    result_changes : list of Change
+        Changed results.
     """
     import pandas as pd
 
@@ -148,7 +174,13 @@ def compare_frame(old: dict, new: dict, input_changes, result_changes):
 
 
 def class_probabilities_frame(block: dict):
-    """Probability of each criticality class from a Monte Carlo block (index: class 1..5)."""
+    """Probability of each criticality class from a Monte Carlo block (index: class 1..5).
+
+    Parameters
+    ----------
+    block : dict
+        ``results.uncertainty`` of a Monte Carlo run.
+    """
     import pandas as pd
 
     probabilities = block["class_probabilities"]
@@ -164,7 +196,13 @@ PERCENTILE_FIGURES = ("mtsr_degC", "td24_degC", "tmrad_at_mtsr_h", "onset_margin
 
 def percentiles_frame(block: dict):
     """p5, p50, p95, mean and std of each figure of a Monte Carlo block (one row each; vessel
-    figures as ``VESSEL:key``)."""
+    figures as ``VESSEL:key``).
+
+    Parameters
+    ----------
+    block : dict
+        ``results.uncertainty`` of a Monte Carlo run.
+    """
     import pandas as pd
 
     rows = {}
@@ -182,7 +220,13 @@ def percentiles_frame(block: dict):
 
 def sensitivity_frame(block: dict):
     """Spearman rank correlation of each uncertain input with the margin TD24 - MTSR and with
-    TMRad at MTSR, largest first (index: the input key)."""
+    TMRad at MTSR, largest first (index: the input key).
+
+    Parameters
+    ----------
+    block : dict
+        ``results.uncertainty`` of a Monte Carlo run.
+    """
     import pandas as pd
 
     frame = pd.DataFrame(block.get("sensitivity") or [],

@@ -13,26 +13,64 @@ SUBSCRIPT = '<sub rise="28%">'
 
 
 def typeset(text: str) -> str:
-    """Paragraph markup with the report's subscript setting."""
+    """Paragraph markup with the report's subscript setting.
+
+    Parameters
+    ----------
+    text : str
+        Paragraph markup.
+    """
     return str(text).replace("<sub>", SUBSCRIPT)
 
 
 def paragraph(text, style):
-    """A reportlab Paragraph (``text`` is markup: escape engine text first)."""
+    """A reportlab Paragraph (``text`` is markup: escape engine text first).
+
+    Parameters
+    ----------
+    text : str
+        Paragraph markup (engine text escaped first).
+    style : ParagraphStyle
+        reportlab paragraph style.
+    """
     from reportlab.platypus import Paragraph
 
     return Paragraph(typeset(text), style)
 
 
 def bullet(text, style, symbol="■"):
-    """A paragraph with a bullet symbol in the left indent."""
+    """A paragraph with a bullet symbol in the left indent.
+
+    Parameters
+    ----------
+    text : str
+        Paragraph markup (engine text escaped first).
+    style : ParagraphStyle
+        reportlab paragraph style.
+    symbol : str
+        Bullet symbol.
+    """
     from reportlab.platypus import Paragraph
 
     return Paragraph(typeset(text), style, bulletText=symbol)
 
 
 def figure_block(drawing, number: int, title: str, caption: str, styles):
-    """A figure (a vector drawing) with its numbered caption, kept on one page."""
+    """A figure (a vector drawing) with its numbered caption, kept on one page.
+
+    Parameters
+    ----------
+    drawing : reportlab.graphics.shapes.Drawing
+        The figure.
+    number : int
+        Figure number.
+    title : str
+        Title (plain text; escaped here).
+    caption : str
+        Caption (paragraph markup).
+    styles : dict
+        Paragraph styles of the report (``caption`` is used).
+    """
     from reportlab.platypus import KeepTogether, Paragraph, Spacer
 
     text = f"<b>Figure {number}. {escape(title)}</b> {caption}"
@@ -125,4 +163,11 @@ class FigureCounter:
         return self.next_number
 
     def reset(self, mark: int) -> None:
+        """Set the next figure number back to ``mark`` (when a block is dropped).
+
+        Parameters
+        ----------
+        mark : int
+            Next figure number.
+        """
         self.next_number = mark

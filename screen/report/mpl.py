@@ -36,6 +36,11 @@ def draw(data):
     """The matplotlib figure of one figure's data (a
     :class:`screen.report.figure_data.FigureData`), the same data the PDF draws.
 
+    Parameters
+    ----------
+    data : FigureData
+        Figure data: drawing name and its keyword arguments.
+
     Returns
     -------
     matplotlib.figure.Figure
@@ -109,7 +114,15 @@ def _c(value_k):
 
 
 def temperature_scale(temperatures_k: dict, class_label=None):
-    """Criticality temperature scale (see :func:`screen.report.figures.temperature_scale`)."""
+    """Criticality temperature scale (see :func:`screen.report.figures.temperature_scale`).
+
+    Parameters
+    ----------
+    temperatures_k : dict
+        ``T_p``, ``MTSR``, ``MTT``, ``TD24``, ``TD8``, ``final``. [K]
+    class_label : str, optional
+        Printed above the scale (e.g. "criticality class 3").
+    """
     figures, style = _style()
     figure, ax = _figure(3.4)
     t = {key: _c(value) for key, value in temperatures_k.items() if _finite(value)}
@@ -173,14 +186,40 @@ def temperature_scale(temperatures_k: dict, class_label=None):
 
 
 def figures_spread(values, gap, low, high):
-    """Label positions at least ``gap`` apart (the de-overlap of the PDF figures)."""
+    """Label positions at least ``gap`` apart (the de-overlap of the PDF figures).
+
+    Parameters
+    ----------
+    values : sequence of float
+        Wanted positions.
+    gap : float
+        Smallest distance between labels (same unit).
+    low : float or None
+        Lowest allowed position.
+    high : float or None
+        Highest allowed position.
+    """
     from screen.report.plot import spread_labels
 
     return spread_labels(values, gap, low=low, high=high)
 
 
 def tmrad_curve(temperature_k, tmrad_s, levels_k: dict, points=(), lowest_measured_k=None):
-    """TMRad against the start temperature (see :func:`screen.report.figures.tmrad_curve`)."""
+    """TMRad against the start temperature (see :func:`screen.report.figures.tmrad_curve`).
+
+    Parameters
+    ----------
+    temperature_k : array
+        Start temperature. [K]
+    tmrad_s : array
+        TMRad, NaN where not defined. [s]
+    levels_k : dict
+        ``TD24`` and ``TD8`` (either may be missing). [K]
+    points : sequence of (str, float, float)
+        Marked points: label, start temperature [K], TMRad [h].
+    lowest_measured_k : float, optional
+        Lowest temperature of the kinetic measurements. [K]
+    """
     import numpy as np
 
     from screen.constants import SECONDS_PER_HOUR
@@ -232,7 +271,14 @@ def tmrad_curve(temperature_k, tmrad_s, levels_k: dict, points=(), lowest_measur
 
 
 def semenov_diagram(curve: dict):
-    """Semenov diagram of one vessel (see :func:`screen.report.figures.semenov_diagram`)."""
+    """Semenov diagram of one vessel (see :func:`screen.report.figures.semenov_diagram`).
+
+    Parameters
+    ----------
+    curve : dict
+        Semenov curve of one vessel (temperatures in K, heat flows in W), as for
+        :func:`screen.report.figures.semenov_diagram`.
+    """
     import numpy as np
 
     figures, style = _style()
@@ -290,7 +336,27 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
                        time_to_maximum_rate_s=None, jump_at_start=True,
                        label="adiabatic decomposition from MTSR", extra_courses=()):
     """Temperature course after a cooling failure (see
-    :func:`screen.report.figures.temperature_course`)."""
+    :func:`screen.report.figures.temperature_course`).
+
+    Parameters
+    ----------
+    time_s : array
+        Time after the failure. [s]
+    temperature_k : array
+        Temperature of the mass. [K]
+    levels_k : dict
+        Horizontal reference levels (``MTT``, ``TD24``, ...). [K]
+    process_temperature_k : float, optional
+        Start of the synthesis rise at t = 0. [K]
+    time_to_maximum_rate_s : float, optional
+        Marked on the curve. [s]
+    jump_at_start : bool
+        Draw the synthesis rise T_p -> first temperature at t = 0.
+    label : str
+        Legend text of the course.
+    extra_courses : sequence of (array, array, str)
+        Further courses: time [s], temperature [K], legend text.
+    """
     import numpy as np
 
     from screen.constants import SECONDS_PER_HOUR
@@ -341,7 +407,19 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
 
 
 def run_profile(time_s, series, levels_k=None, marker_time_s=None):
-    """Temperature profiles over a run (see :func:`screen.report.figures.run_profile`)."""
+    """Temperature profiles over a run (see :func:`screen.report.figures.run_profile`).
+
+    Parameters
+    ----------
+    time_s : array
+        Time since the start of the run. [s]
+    series : sequence of (str, array, str)
+        Label, temperature [K] and style (``"ink"`` or ``"accent"``).
+    levels_k : dict, optional
+        Horizontal reference levels (``MTT``). [K]
+    marker_time_s : float, optional
+        A moment to mark (the worst failure time). [s]
+    """
     import numpy as np
 
     from screen.constants import SECONDS_PER_HOUR
@@ -379,7 +457,21 @@ def run_profile(time_s, series, levels_k=None, marker_time_s=None):
 
 def sensitivity_bars(names, values, value_label="sensitivity [-]", second_values=None,
                      series_labels=None):
-    """Sensitivity ranking (see :func:`screen.report.figures.sensitivity_bars`)."""
+    """Sensitivity ranking (see :func:`screen.report.figures.sensitivity_bars`).
+
+    Parameters
+    ----------
+    names : sequence of str
+        The inputs.
+    values : sequence of float
+        First measure per input (e.g. a rank correlation). [-]
+    value_label : str
+        Axis label.
+    second_values : sequence of float, optional
+        Second measure per input. [-]
+    series_labels : (str, str), optional
+        Legend texts of the two measures.
+    """
     import numpy as np
 
     figures, style = _style()

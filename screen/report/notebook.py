@@ -21,7 +21,13 @@ def _number(value, digits: str = ".1f") -> str:
 
 
 def class_text(results: dict) -> str:
-    """"class 3" or "no class (cannot conclude)"."""
+    """"class 3" or "no class (cannot conclude)".
+
+    Parameters
+    ----------
+    results : dict
+        The ``results`` table of a JSON-ready result.
+    """
     klass = results.get("criticality_class")
     if klass is None:
         return "no class (cannot conclude)"
@@ -30,7 +36,13 @@ def class_text(results: dict) -> str:
 
 
 def short_text(data: dict) -> str:
-    """Title, criticality class, MTSR and TD24 in one line, then the short caution."""
+    """Title, criticality class, MTSR and TD24 in one line, then the short caution.
+
+    Parameters
+    ----------
+    data : dict
+        JSON-ready result.
+    """
     from screen.cautions import SHORT_CAUTION
 
     results = data["results"]
@@ -70,7 +82,13 @@ VESSEL_COLUMNS = (
 
 
 def html(data: dict) -> str:
-    """An HTML block: verdict, key figures, vessel table, warnings count and the cautions."""
+    """An HTML block: verdict, key figures, vessel table, warnings count and the cautions.
+
+    Parameters
+    ----------
+    data : dict
+        JSON-ready result.
+    """
     from screen.cautions import CAUTIONS
 
     results = data["results"]
@@ -111,7 +129,15 @@ def html(data: dict) -> str:
 
 
 def uncertainty_text(block: dict, title: str) -> str:
-    """Short text of a Monte Carlo result: samples, seed, class probabilities, caution."""
+    """Short text of a Monte Carlo result: samples, seed, class probabilities, caution.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.uncertainty`` of a Monte Carlo run.
+    title : str
+        Case title.
+    """
     from screen.cautions import SHORT_CAUTION
 
     probabilities = ", ".join(f"{k}: {v:.3g}" for k, v in block["class_probabilities"].items())
@@ -122,7 +148,17 @@ def uncertainty_text(block: dict, title: str) -> str:
 
 def uncertainty_html(block: dict, title: str, percentiles_html: str) -> str:
     """HTML of a Monte Carlo result: the confidence sentence, class probabilities, percentiles
-    and the cautions."""
+    and the cautions.
+
+    Parameters
+    ----------
+    block : dict
+        ``results.uncertainty`` of a Monte Carlo run.
+    title : str
+        Case title.
+    percentiles_html : str
+        HTML table of the percentiles.
+    """
     from screen.cautions import CAUTIONS
 
     rows = "".join(f"<tr><td>{escape(k)}</td><td style='text-align:right'>{v:.4g}</td></tr>"

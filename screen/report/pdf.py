@@ -366,7 +366,13 @@ def _key_figure_note(kind, value, results):
 
 
 def key_figure_rows(results):
-    """Rows (label, symbol, value text, unit, note) of the key-figures table."""
+    """Rows (label, symbol, value text, unit, note) of the key-figures table.
+
+    Parameters
+    ----------
+    results : dict
+        The ``results`` table of the JSON-ready result.
+    """
     rows = []
     for label, symbol, key, unit, formatter, note in KEY_FIGURES:
         if key not in results:

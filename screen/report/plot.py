@@ -29,7 +29,13 @@ def _color(value):
 
 
 def text_runs(text: str):
-    """Split ``"T_{D24} at 10^{3}"`` into runs ``(text, kind)`` with kind "", "sub" or "sup"."""
+    """Split ``"T_{D24} at 10^{3}"`` into runs ``(text, kind)`` with kind "", "sub" or "sup".
+
+    Parameters
+    ----------
+    text : str
+        Text with ``_{...}`` (subscript) and ``^{...}`` (superscript) markup.
+    """
     runs, position = [], 0
     for match in _MARKUP.finditer(text):
         if match.start() > position:
@@ -42,7 +48,17 @@ def text_runs(text: str):
 
 
 def text_width(text: str, size: float, bold: bool = False) -> float:
-    """Width of a marked-up text [pt]."""
+    """Width of a marked-up text [pt].
+
+    Parameters
+    ----------
+    text : str
+        Marked-up text (see :func:`text_runs`).
+    size : float
+        Font size. [pt]
+    bold : bool
+        Bold font.
+    """
     from reportlab.pdfbase.pdfmetrics import stringWidth
 
     font = FONT_BOLD if bold else FONT
@@ -54,7 +70,38 @@ def add_text(group, x, y, text, size=7.0, anchor="start", color=INK, bold=False,
              valign="baseline", background=None):
     """Draw marked-up text at (x, y); ``anchor`` start/middle/end, ``valign`` baseline/middle/
     top/bottom; ``angle`` in degrees (counter-clockwise); ``background`` a fill colour for a
-    box behind the text (so that lines do not run through it)."""
+    box behind the text (so that lines do not run through it).
+
+    Parameters
+    ----------
+    group : reportlab.graphics.shapes.Group
+        Group the text is added to.
+    x : float
+        Anchor abscissa, drawing coordinates. [pt]
+    y : float
+        Anchor ordinate, drawing coordinates. [pt]
+    text : str
+        Marked-up text (see :func:`text_runs`).
+    size : float
+        Font size. [pt]
+    anchor : str
+        Horizontal anchor: ``start``, ``middle`` or ``end``.
+    color : str or Color
+        Text colour (hex string or reportlab colour).
+    bold : bool
+        Bold font.
+    angle : float
+        Rotation, counter-clockwise. [deg]
+    valign : str
+        Vertical anchor: ``baseline``, ``middle``, ``top`` or ``bottom``.
+    background : str or None
+        Fill colour of a box behind the text; None for none.
+
+    Returns
+    -------
+    float
+        Width of the text. [pt]
+    """
     from reportlab.graphics.shapes import Group, Rect, String
 
     width = text_width(text, size, bold)
@@ -86,6 +133,27 @@ def add_text(group, x, y, text, size=7.0, anchor="start", color=INK, bold=False,
 
 
 def add_box(group, x, y, width, height, fill="#ffffff", stroke=None, stroke_width=0.6):
+    """Add a rectangle (filled, optionally outlined) to ``group``.
+
+    Parameters
+    ----------
+    group : reportlab.graphics.shapes.Group
+        Group the box is added to.
+    x : float
+        Left edge, drawing coordinates. [pt]
+    y : float
+        Bottom edge, drawing coordinates. [pt]
+    width : float
+        Width. [pt]
+    height : float
+        Height. [pt]
+    fill : str or None
+        Fill colour.
+    stroke : str or None
+        Outline colour; None for no outline.
+    stroke_width : float
+        Outline width. [pt]
+    """
     from reportlab.graphics.shapes import Rect
 
     group.add(Rect(x, y, width, height, fillColor=_color(fill), strokeColor=_color(stroke),
@@ -93,7 +161,32 @@ def add_box(group, x, y, width, height, fill="#ffffff", stroke=None, stroke_widt
 
 
 def clip_segment(x0, y0, x1, y1, left, bottom, right, top):
-    """Liang-Barsky clipping of a segment to a rectangle; None when outside."""
+    """Liang-Barsky clipping of a segment to a rectangle; None when outside.
+
+    Parameters
+    ----------
+    x0 : float
+        Start abscissa.
+    y0 : float
+        Start ordinate.
+    x1 : float
+        End abscissa.
+    y1 : float
+        End ordinate.
+    left : float
+        Left edge of the rectangle.
+    bottom : float
+        Bottom edge of the rectangle.
+    right : float
+        Right edge of the rectangle.
+    top : float
+        Top edge of the rectangle.
+
+    Returns
+    -------
+    tuple of float or None
+        (x0, y0, x1, y1) of the clipped segment, in the coordinates given.
+    """
     dx, dy = x1 - x0, y1 - y0
     low, high = 0.0, 1.0
     for p, q in ((-dx, x0 - left), (dx, right - x0), (-dy, y0 - bottom), (dy, top - y0)):
@@ -114,7 +207,17 @@ def clip_segment(x0, y0, x1, y1, left, bottom, right, top):
 
 
 def nice_linear_ticks(low, high, target=6):
-    """Round tick values covering [low, high] (steps of 1, 2, 2.5 or 5 times a power of 10)."""
+    """Round tick values covering [low, high] (steps of 1, 2, 2.5 or 5 times a power of 10).
+
+    Parameters
+    ----------
+    low : float
+        Lower end of the range (data units).
+    high : float
+        Upper end of the range (data units).
+    target : int
+        Wanted number of intervals (about).
+    """
     span = high - low
     if not span > 0:
         return [low]
@@ -166,15 +269,43 @@ class Axes:
         return (value - low) / (high - low)
 
     def tx(self, value):
+        """Drawing abscissa [pt] of a data x value (NaN when it cannot be shown on a log axis).
+
+        Parameters
+        ----------
+        value : float
+            Data x value.
+        """
         return self.x + self.width * self._scale(float(value), self.xlim, self.xlog)
 
     def ty(self, value):
+        """Drawing ordinate [pt] of a data y value (NaN when it cannot be shown on a log axis).
+
+        Parameters
+        ----------
+        value : float
+            Data y value.
+        """
         return self.y + self.height * self._scale(float(value), self.ylim, self.ylog)
 
     def fx(self, fraction):
+        """Drawing abscissa [pt] of a fraction of the axes width.
+
+        Parameters
+        ----------
+        fraction : float
+            0 at the left edge, 1 at the right edge. [-]
+        """
         return self.x + self.width * fraction
 
     def fy(self, fraction):
+        """Drawing ordinate [pt] of a fraction of the axes height.
+
+        Parameters
+        ----------
+        fraction : float
+            0 at the bottom edge, 1 at the top edge. [-]
+        """
         return self.y + self.height * fraction
 
     # primitives ----------------------------------------------------------------------------
@@ -186,7 +317,23 @@ class Axes:
         return kwargs
 
     def polyline_points(self, xs, ys, left=None, bottom=None, right=None, top=None):
-        """Drawing-coordinate runs of a data polyline clipped to the plot area."""
+        """Drawing-coordinate runs of a data polyline clipped to the plot area.
+
+        Parameters
+        ----------
+        xs : sequence of float
+            Data x values.
+        ys : sequence of float
+            Data y values.
+        left : float, optional
+            Clip rectangle, left edge; default the axes. [pt]
+        bottom : float, optional
+            Clip rectangle, bottom edge; default the axes. [pt]
+        right : float, optional
+            Clip rectangle, right edge; default the axes. [pt]
+        top : float, optional
+            Clip rectangle, top edge; default the axes. [pt]
+        """
         left = self.x if left is None else left
         bottom = self.y if bottom is None else bottom
         right = self.x + self.width if right is None else right
@@ -227,6 +374,23 @@ class Axes:
         return [run for run in runs if len(run) >= 2]
 
     def line(self, xs, ys, color=INK, width=1.0, dash=None, layer=None):
+        """Draw a data polyline clipped to the axes.
+
+        Parameters
+        ----------
+        xs : sequence of float
+            Data x values.
+        ys : sequence of float
+            Data y values.
+        color : str
+            Line colour.
+        width : float
+            Line width. [pt]
+        dash : sequence of float or None
+            Dash pattern; None for a solid line. [pt]
+        layer : Group or None
+            Group to draw into; None for the main layer.
+        """
         from reportlab.graphics.shapes import PolyLine
 
         target = layer if layer is not None else self.group
@@ -235,7 +399,23 @@ class Axes:
             target.add(PolyLine(flat, **self._stroke_kwargs(color, width, dash)))
 
     def hline(self, y, color=INK, width=0.8, dash=None, x_from=0.0, x_to=1.0):
-        """Horizontal line at data y across the axes fractions x_from..x_to."""
+        """Horizontal line at data y across the axes fractions x_from..x_to.
+
+        Parameters
+        ----------
+        y : float
+            Data y value.
+        color : str
+            Line colour.
+        width : float
+            Line width. [pt]
+        dash : sequence of float or None
+            Dash pattern; None for a solid line. [pt]
+        x_from : float
+            Start as a fraction of the axes width. [-]
+        x_to : float
+            End as a fraction of the axes width. [-]
+        """
         from reportlab.graphics.shapes import Line
 
         py = self.ty(y)
@@ -245,6 +425,23 @@ class Axes:
         return py
 
     def vline(self, x, color=INK, width=0.8, dash=None, y_from=0.0, y_to=1.0):
+        """Vertical line at data x across the axes fractions y_from..y_to; returns its x [pt].
+
+        Parameters
+        ----------
+        x : float
+            Data x value.
+        color : str
+            Line colour.
+        width : float
+            Line width. [pt]
+        dash : sequence of float or None
+            Dash pattern; None for a solid line. [pt]
+        y_from : float
+            Start as a fraction of the axes height. [-]
+        y_to : float
+            End as a fraction of the axes height. [-]
+        """
         from reportlab.graphics.shapes import Line
 
         px = self.tx(x)
@@ -255,7 +452,29 @@ class Axes:
 
     def band(self, x0, y0, x1, y1, fill=None, hatch=None, hatch_color=GREY_LIGHT,
              hatch_spacing=5.0, hatch_direction=1):
-        """A rectangle in drawing coordinates clipped to the axes, filled and/or hatched."""
+        """A rectangle in drawing coordinates clipped to the axes, filled and/or hatched.
+
+        Parameters
+        ----------
+        x0 : float
+            One corner, abscissa. [pt]
+        y0 : float
+            One corner, ordinate. [pt]
+        x1 : float
+            Opposite corner, abscissa. [pt]
+        y1 : float
+            Opposite corner, ordinate. [pt]
+        fill : str or None
+            Fill colour; None for no fill.
+        hatch : bool or None
+            Draw diagonal hatching.
+        hatch_color : str
+            Colour of the hatching.
+        hatch_spacing : float
+            Distance between hatch lines. [pt]
+        hatch_direction : int
+            +1 rising, -1 falling hatch lines.
+        """
         from reportlab.graphics.shapes import Line, Rect
 
         left, right = max(min(x0, x1), self.x), min(max(x0, x1), self.x + self.width)
@@ -280,6 +499,23 @@ class Axes:
                 offset += hatch_spacing
 
     def marker(self, x, y, shape="o", size=4.5, fill=INK, stroke=INK):
+        """Marker at a data point (skipped when not drawable).
+
+        Parameters
+        ----------
+        x : float
+            Data x value.
+        y : float
+            Data y value.
+        shape : str
+            ``o`` circle, ``s`` square or ``D`` diamond.
+        size : float
+            Marker size. [pt]
+        fill : str
+            Fill colour.
+        stroke : str
+            Outline colour.
+        """
         from reportlab.graphics.shapes import Circle, Polygon, Rect
 
         px, py = self.tx(x), self.ty(y)
@@ -299,7 +535,27 @@ class Axes:
         self.foreground.add(shape_object)
 
     def arrow(self, x0, y0, x1, y1, color=INK, width=1.2, dash=None, head=5.0):
-        """Arrow in drawing coordinates from (x0, y0) to (x1, y1)."""
+        """Arrow in drawing coordinates from (x0, y0) to (x1, y1).
+
+        Parameters
+        ----------
+        x0 : float
+            Tail abscissa. [pt]
+        y0 : float
+            Tail ordinate. [pt]
+        x1 : float
+            Tip abscissa. [pt]
+        y1 : float
+            Tip ordinate. [pt]
+        color : str
+            Colour.
+        width : float
+            Line width. [pt]
+        dash : sequence of float or None
+            Dash pattern of the shaft. [pt]
+        head : float
+            Length of the head. [pt]
+        """
         from reportlab.graphics.shapes import Line, Polygon
 
         length = math.hypot(x1 - x0, y1 - y0)
@@ -315,14 +571,44 @@ class Axes:
                                     strokeWidth=0.5))
 
     def text(self, x, y, text, **kwargs):
-        """Text at drawing coordinates (in the foreground layer)."""
+        """Text at drawing coordinates (in the foreground layer).
+
+        Parameters
+        ----------
+        x : float
+            Anchor abscissa. [pt]
+        y : float
+            Anchor ordinate. [pt]
+        text : str
+            Marked-up text.
+        **kwargs
+            Keyword arguments of :func:`add_text`.
+        """
         return add_text(self.foreground, x, y, text, **kwargs)
 
     # frame ---------------------------------------------------------------------------------
 
     def frame(self, xlabel=None, ylabel=None, xticks=True, yticks=True, grid_x=True,
               grid_y=True, size=7.0):
-        """Left and bottom axis lines, ticks, tick labels, grid and axis labels."""
+        """Left and bottom axis lines, ticks, tick labels, grid and axis labels.
+
+        Parameters
+        ----------
+        xlabel : str or None
+            Label of the x axis.
+        ylabel : str or None
+            Label of the y axis.
+        xticks : bool
+            Draw x ticks and tick labels.
+        yticks : bool
+            Draw y ticks and tick labels.
+        grid_x : bool
+            Draw vertical grid lines.
+        grid_y : bool
+            Draw horizontal grid lines.
+        size : float
+            Font size of the labels. [pt]
+        """
         from reportlab.graphics.shapes import Line
 
         ink, grid = _color(INK), _color(GREY_LIGHT)
@@ -377,7 +663,19 @@ class Axes:
         return [(value, _tick_label(value, step)) for value in values]
 
     def legend(self, entries, corner="upper left", size=6.8, pad=4.0):
-        """Legend box; entries are (kind, style dict, label) with kind line/marker/hatch."""
+        """Legend box; entries are (kind, style dict, label) with kind line/marker/hatch.
+
+        Parameters
+        ----------
+        entries : sequence of (str, dict, str)
+            (kind, style, label); kind ``line``, ``marker`` or ``hatch``.
+        corner : str
+            ``upper left``, ``upper right``, ``lower left`` or ``lower right``.
+        size : float
+            Font size. [pt]
+        pad : float
+            Padding inside the box. [pt]
+        """
         from reportlab.graphics.shapes import Line, Rect
 
         if not entries:
@@ -431,6 +729,17 @@ def spread_labels(values, gap, low=None, high=None):
 
     A one-dimensional de-overlap: sort, push each label up to keep the gap, then shift the
     block down if it passes ``high`` (never below ``low``).
+
+    Parameters
+    ----------
+    values : sequence of float
+        Wanted positions.
+    gap : float
+        Smallest distance between labels (same unit).
+    low : float, optional
+        Lowest allowed position.
+    high : float, optional
+        Highest allowed position.
     """
     order = sorted(range(len(values)), key=lambda i: values[i])
     placed = [0.0] * len(values)

@@ -163,14 +163,26 @@ def paragraph_styles() -> dict:
 
 
 def escape(text) -> str:
-    """Escape text for a reportlab Paragraph (which reads a small XML subset)."""
+    """Escape text for a reportlab Paragraph (which reads a small XML subset).
+
+    Parameters
+    ----------
+    text : object
+        Text (converted with ``str``).
+    """
     return (str(text).replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;"))
 
 
 def prose(text) -> str:
     """Escape engine text for a Paragraph and typeset it: ``degC`` as °C, `` -> `` as an arrow,
     ``>=`` and ``<=`` as ≥ and ≤,
-    ``T_NR`` as T with a subscript. Figures and words are left as they are."""
+    ``T_NR`` as T with a subscript. Figures and words are left as they are.
+
+    Parameters
+    ----------
+    text : object
+        Engine text (converted with ``str``).
+    """
     import re
 
     text = (escape(text).replace(" degC", " °C").replace(" -&gt; ", " → ")
@@ -179,14 +191,28 @@ def prose(text) -> str:
 
 
 def format_celsius(value) -> str:
-    """Temperature in degC with 1 decimal, without unit (``85.3``); ``n/a`` for None."""
+    """Temperature in degC with 1 decimal, without unit (``85.3``); ``n/a`` for None.
+
+    Parameters
+    ----------
+    value : float or None
+        Temperature. [degC]
+    """
     if value is None:
         return "n/a"
     return f"{float(value):.1f}"
 
 
 def format_kelvin(value, signed: bool = False) -> str:
-    """Temperature difference in K with 1 decimal, without unit; ``n/a`` for None."""
+    """Temperature difference in K with 1 decimal, without unit; ``n/a`` for None.
+
+    Parameters
+    ----------
+    value : float or None
+        Temperature difference. [K]
+    signed : bool
+        Always show the sign.
+    """
     if value is None:
         return "n/a"
     return f"{float(value):+.1f}" if signed else f"{float(value):.1f}"
@@ -194,7 +220,15 @@ def format_kelvin(value, signed: bool = False) -> str:
 
 def format_significant(value, digits: int = 3) -> str:
     """A positive or negative number to ``digits`` significant digits, in plain notation from
-    0.001 to below 100 000 and in ``1.23e+05`` notation outside; ``n/a`` for None or non-finite."""
+    0.001 to below 100 000 and in ``1.23e+05`` notation outside; ``n/a`` for None or non-finite.
+
+    Parameters
+    ----------
+    value : float or None
+        Number.
+    digits : int
+        Significant digits.
+    """
     if value is None:
         return "n/a"
     value = float(value)
@@ -217,24 +251,48 @@ def format_significant(value, digits: int = 3) -> str:
 
 
 def format_hours(value) -> str:
-    """A time in hours to 3 significant digits (see :func:`format_significant`)."""
+    """A time in hours to 3 significant digits (see :func:`format_significant`).
+
+    Parameters
+    ----------
+    value : float or None
+        Time. [h]
+    """
     return format_significant(value, 3)
 
 
 def format_energy(value) -> str:
-    """A specific energy in kJ/kg to 4 significant digits."""
+    """A specific energy in kJ/kg to 4 significant digits.
+
+    Parameters
+    ----------
+    value : float or None
+        Specific energy. [kJ/kg]
+    """
     return format_significant(value, 4)
 
 
 def format_ratio(value) -> str:
-    """A ratio or fraction with 2 decimals."""
+    """A ratio or fraction with 2 decimals.
+
+    Parameters
+    ----------
+    value : float or None
+        Ratio or fraction. [-]
+    """
     if value is None:
         return "n/a"
     return f"{float(value):.2f}"
 
 
 def format_generic(value) -> str:
-    """Any JSON value for a table cell (numbers to 4 significant digits)."""
+    """Any JSON value for a table cell (numbers to 4 significant digits).
+
+    Parameters
+    ----------
+    value : object
+        JSON value (number, text, bool, list or None).
+    """
     if value is None:
         return "n/a"
     if isinstance(value, bool):

@@ -20,7 +20,13 @@ def _fmt(value, digits=1, unit=""):
 
 
 def format_hours(hours) -> str:
-    """TMRad in h with sensible precision; very long times in scientific notation."""
+    """TMRad in h with sensible precision; very long times in scientific notation.
+
+    Parameters
+    ----------
+    hours : float or None
+        Time. [h]
+    """
     if hours is None:
         return "n/a"
     if hours >= 1e5:
@@ -37,7 +43,13 @@ def _wrap(text, indent="  "):
 
 
 def format_check(data: dict) -> str:
-    """Format the JSON-ready dict of :meth:`ScreeningResult.to_json_dict` for the terminal."""
+    """Format the JSON-ready dict of :meth:`ScreeningResult.to_json_dict` for the terminal.
+
+    Parameters
+    ----------
+    data : dict
+        JSON-ready result (temperatures in degC, times in h, as in the JSON).
+    """
     r = data["results"]
     case = data["case"]
     lines = []
@@ -116,7 +128,13 @@ def format_check(data: dict) -> str:
 
 
 def format_vessels(vessels) -> list[str]:
-    """Scale-up table, one row per vessel, then the verdict per vessel."""
+    """Scale-up table, one row per vessel, then the verdict per vessel.
+
+    Parameters
+    ----------
+    vessels : list of dict
+        The ``results.vessels`` entries of the JSON-ready result.
+    """
 
     def num(value, fmt):
         if value is None:
