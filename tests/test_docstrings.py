@@ -109,7 +109,8 @@ def documentation_gaps(source: str, where: str, units: bool) -> list[str]:
     Returns
     -------
     list of str
-        One message per gap ("no docstring", "parameter not documented", "no [unit]"). [text]
+        One message per gap ("no docstring", "parameter not documented", "parameter without a
+        description", "no [unit]"). [text]
     """
     gaps: list[str] = []
     tree = ast.parse(source)
@@ -125,6 +126,8 @@ def documentation_gaps(source: str, where: str, units: bool) -> list[str]:
         for param in params:
             if param not in documented:
                 gaps.append(f"{label}({param}): parameter not documented")
+            elif not documented[param].partition("\n")[2].strip():
+                gaps.append(f"{label}({param}): parameter without a description")
             elif units and not _has_unit(documented[param]):
                 gaps.append(f"{label}({param}): parameter without [unit]")
         if units:
@@ -210,6 +213,12 @@ def test_checker_reports_each_kind_of_gap():
     assert not any("volume" in g or "_private" in g for g in gaps)
     assert len(gaps) == 5
     assert len(documentation_gaps(BAD_SOURCE, "bad.py", units=False)) == 2
+
+
+def test_checker_wants_a_description():
+    source = 'def f(mass):\n    """F.\n\n    Parameters\n    ----------\n    mass : float\n    """\n'
+    assert documentation_gaps(source, "f.py", units=False) == [
+        "f.py:1 f(mass): parameter without a description"]
 
 
 def test_checker_accepts_a_complete_docstring():

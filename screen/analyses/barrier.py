@@ -284,6 +284,7 @@ def assess_vessel(case, results, vessel, vessel_entry, context) -> dict:
     Parameters
     ----------
     case : screen.io.case.Case
+        Loaded case (SI quantities).
     results : dict
         ``ScreeningResult.results`` with the core figures and ``vessels``.
     vessel : screen.io.case.Section
@@ -525,6 +526,7 @@ def add_barrier(case, result, curves: bool = False) -> None:
     Parameters
     ----------
     case : screen.io.case.Case
+        Loaded case (SI quantities).
     result : screen.analyses.engine.ScreeningResult
         Core figures and vessels already computed; changed in place (results, warnings,
         methods, curves).

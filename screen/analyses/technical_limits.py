@@ -135,7 +135,9 @@ def apply_technical_limits(case, result, verdict_text) -> None:
     Parameters
     ----------
     case : screen.io.case.Case
+        Loaded case (SI quantities).
     result : screen.analyses.engine.ScreeningResult
+        Result of the engine, updated in place.
     verdict_text : callable
         ``verdict_text(klass, severity_4, probability_6, status)``, the engine's wording.
     """

@@ -86,7 +86,9 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
     Parameters
     ----------
     case : screen.io.case.Case
+        Loaded case (SI quantities).
     kinetics : screen.models.decomposition.DecompositionKinetics
+        Decomposition kinetics built once per screening.
     mtsr : float
         MTSR of the case. [K]
     tmrad_mtsr_h : float, optional

@@ -316,8 +316,11 @@ def deliver(result, *, to_dict, summary, fragment, write_pngs, output, force, pn
     output : str or None
         Fragment file (``-o``); never overwritten without ``force``.
     force : bool
+        ``--force``: allow the output file to be replaced.
     png_dir : str or None
+        ``--png-dir``: folder for the PNG figures; None writes none.
     as_json : bool
+        ``--json``: print one JSON object instead of text.
     written_what : str
         What the fragment holds, for the text message ("[decomposition] section").
     inputs : iterable of str

@@ -35,7 +35,9 @@ def check_case(sections, vessels, path, warnings) -> None:
     Parameters
     ----------
     sections : dict of str to screen.io.case.Section
+        Validated sections of the case by name (SI quantities).
     vessels : sequence of screen.io.case.Section
+        Validated vessel sections.
     path : str
         Case file, for the error message.
     warnings : list of str

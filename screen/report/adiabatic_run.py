@@ -22,6 +22,7 @@ def result_to_dict(result):
     Parameters
     ----------
     result : AdiabaticResult
+        Analysis of the adiabatic run (SI).
 
     Returns
     -------
@@ -102,6 +103,7 @@ def format_summary(result):
     Parameters
     ----------
     result : AdiabaticResult
+        Analysis of the adiabatic run (SI).
 
     Returns
     -------
@@ -145,6 +147,7 @@ def decomposition_toml(result):
     Parameters
     ----------
     result : AdiabaticResult
+        Analysis of the adiabatic run (SI).
 
     Returns
     -------
@@ -200,6 +203,7 @@ def figures(result):
     Parameters
     ----------
     result : AdiabaticResult
+        Analysis of the adiabatic run (SI).
 
     Returns
     -------
@@ -267,7 +271,9 @@ def write_pngs(result, directory):
     Parameters
     ----------
     result : AdiabaticResult
+        Analysis of the adiabatic run (SI).
     directory : str or pathlib.Path
+        Folder for the PNG files.
 
     Returns
     -------

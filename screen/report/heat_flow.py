@@ -20,6 +20,7 @@ def result_to_dict(result, curve_points=CURVE_POINTS):
     Parameters
     ----------
     result : HeatFlowResult
+        Analysis of the heat-flow trace (SI).
     curve_points : int
         Points per curve (decimated evenly in time, keeping the maximum of the accumulation).
 
@@ -96,6 +97,7 @@ def format_summary(result):
     Parameters
     ----------
     result : HeatFlowResult
+        Analysis of the heat-flow trace (SI).
 
     Returns
     -------
@@ -130,6 +132,7 @@ def case_fragment(result):
     Parameters
     ----------
     result : HeatFlowResult
+        Analysis of the heat-flow trace (SI).
 
     Returns
     -------
@@ -184,6 +187,7 @@ def figures(result):
     Parameters
     ----------
     result : HeatFlowResult
+        Analysis of the heat-flow trace (SI).
 
     Returns
     -------
@@ -248,7 +252,9 @@ def write_pngs(result, directory):
     Parameters
     ----------
     result : HeatFlowResult
+        Analysis of the heat-flow trace (SI).
     directory : str or pathlib.Path
+        Folder for the PNG files.
 
     Returns
     -------

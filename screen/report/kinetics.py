@@ -59,6 +59,7 @@ def result_to_dict(result):
     Parameters
     ----------
     result : KineticsResult
+        Analysis of the DSC runs (SI).
 
     Returns
     -------
@@ -215,6 +216,7 @@ def format_summary(result):
     Parameters
     ----------
     result : KineticsResult
+        Analysis of the DSC runs (SI).
 
     Returns
     -------
@@ -316,6 +318,7 @@ def figures(result):
     Parameters
     ----------
     result : KineticsResult
+        Analysis of the DSC runs (SI).
 
     Returns
     -------
@@ -420,7 +423,9 @@ def write_pngs(result, directory):
     Parameters
     ----------
     result : KineticsResult
+        Analysis of the DSC runs (SI).
     directory : str or pathlib.Path
+        Folder for the PNG files.
 
     Returns
     -------
@@ -436,7 +441,9 @@ def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)"):
     Parameters
     ----------
     figures_by_name : dict of str -> matplotlib.figure.Figure
+        Figures keyed by the file stem.
     directory : str or pathlib.Path
+        Folder for the PNG files.
     purpose : str
         What needs matplotlib, for the message when it is missing.
 
@@ -487,6 +494,7 @@ def decomposition_toml(result):
     Parameters
     ----------
     result : KineticsResult
+        Analysis of the DSC runs (SI).
 
     Returns
     -------

@@ -831,9 +831,11 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
     Parameters
     ----------
     result : screen.analyses.engine.ScreeningResult
+        Result of the engine.
     data : dict
         ``result.to_json_dict(generated_at)`` (computed once by the caller).
     stream : binary file object
+        Binary stream the PDF is written to.
     since : dict, optional
         An earlier JSON result for the changes-since table.
 

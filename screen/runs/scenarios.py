@@ -322,6 +322,7 @@ def row_figures(case, result) -> dict:
     case : screen.io.case.Case
         The (variant) case screened.
     result : screen.analyses.engine.ScreeningResult
+        Result of the engine for one scenario.
 
     Returns
     -------
