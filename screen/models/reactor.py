@@ -493,7 +493,8 @@ def _check_decomposition(decomposition) -> tuple[float, float]:
             key="decomposition",
         )
     energy = require_positive(getattr(decomposition, "energy", None), "decomposition.energy")
-    initial = require_non_negative(getattr(decomposition, "initial_conversion", None), "decomposition.initial_conversion")
+    initial = require_non_negative(getattr(decomposition, "initial_conversion", None),
+                                   "decomposition.initial_conversion")
     if initial >= 1.0:
         raise ModelDomainError(
             f"decomposition.initial_conversion must be < 1, got {initial!r}",
@@ -1006,6 +1007,49 @@ class NormalOperation:
         return HeatRates(times, reaction, decomposition, cooling, sensible, mass_rates)
 
 
+def _checked_run_inputs(kinetics, charge, feed, end_time, output_points, relative_tolerance):
+    """Validated (relative tolerance [-], end time [s], feed or None, total B [mol], possible
+    extent [mol]) of a normal-operation run; raises ModelDomainError naming the input."""
+    rtol = require_positive(relative_tolerance, "relative_tolerance")
+    if rtol > 1e-3:
+        raise ModelDomainError(
+            f"relative_tolerance must be <= 1e-3, got {rtol!r}", key="relative_tolerance"
+        )
+    end_time = require_positive(end_time, "end_time")
+    if int(output_points) < 2:
+        raise ModelDomainError("output_points must be >= 2", key="output_points")
+    if feed is not None and feed.is_empty:
+        feed = None
+    if feed is not None and feed.end_time > end_time:
+        raise ModelDomainError(
+            f"end_time {end_time:.6g} s ends before the dosing ({feed.end_time:.6g} s)",
+            key="end_time",
+        )
+    feed_moles = 0.0 if feed is None else feed.moles_b
+    total_b = charge.initial_moles_b + feed_moles
+    total_extent = min(charge.initial_moles_a, total_b)
+    if total_extent <= 0.0:
+        raise ModelDomainError(
+            "nothing can react: both A and B (charged plus dosed) must be > 0",
+            key="initial_moles_a",
+        )
+    if kinetics.scheme == "first-order":
+        # A first-order rate ignores the partner; it must never run out or n would go negative.
+        if kinetics.first_order_reagent == "A" and charge.initial_moles_b < charge.initial_moles_a:
+            raise ModelDomainError(
+                "first order in A needs B charged at least equal to A from the start "
+                f"(n_B0 = {charge.initial_moles_b:.6g} mol < "
+                f"n_A0 = {charge.initial_moles_a:.6g} mol)",
+                key="initial_moles_b",
+            )
+        if kinetics.first_order_reagent == "B" and charge.initial_moles_a < total_b:
+            raise ModelDomainError(
+                "first order in B needs A charged at least equal to all B (charged plus dosed)",
+                key="initial_moles_a",
+            )
+    return rtol, end_time, feed, total_b, total_extent
+
+
 def simulate_normal_operation(
     kinetics: SynthesisKinetics,
     charge: ReactorCharge,
@@ -1066,44 +1110,8 @@ def simulate_normal_operation(
         raise ModelDomainError(
             f"method must be a stiff solver (LSODA, Radau, BDF), got {method!r}", key="method"
         )
-    rtol = require_positive(relative_tolerance, "relative_tolerance")
-    if rtol > 1e-3:
-        raise ModelDomainError(
-            f"relative_tolerance must be <= 1e-3, got {rtol!r}", key="relative_tolerance"
-        )
-    end_time = require_positive(end_time, "end_time")
-    if int(output_points) < 2:
-        raise ModelDomainError("output_points must be >= 2", key="output_points")
-    if feed is not None and feed.is_empty:
-        feed = None
-    if feed is not None and feed.end_time > end_time:
-        raise ModelDomainError(
-            f"end_time {end_time:.6g} s ends before the dosing ({feed.end_time:.6g} s)",
-            key="end_time",
-        )
-    feed_moles = 0.0 if feed is None else feed.moles_b
-    total_b = charge.initial_moles_b + feed_moles
-    total_extent = min(charge.initial_moles_a, total_b)
-    if total_extent <= 0.0:
-        raise ModelDomainError(
-            "nothing can react: both A and B (charged plus dosed) must be > 0",
-            key="initial_moles_a",
-        )
-    if kinetics.scheme == "first-order":
-        # A first-order rate ignores the partner; it must never run out or n would go negative.
-        if kinetics.first_order_reagent == "A" and charge.initial_moles_b < charge.initial_moles_a:
-            raise ModelDomainError(
-                "first order in A needs B charged at least equal to A from the start "
-                f"(n_B0 = {charge.initial_moles_b:.6g} mol < "
-                f"n_A0 = {charge.initial_moles_a:.6g} mol)",
-                key="initial_moles_b",
-            )
-        if kinetics.first_order_reagent == "B" and charge.initial_moles_a < total_b:
-            raise ModelDomainError(
-                "first order in B needs A charged at least equal to all B (charged plus dosed)",
-                key="initial_moles_a",
-            )
-
+    rtol, end_time, feed, total_b, total_extent = _checked_run_inputs(
+        kinetics, charge, feed, end_time, output_points, relative_tolerance)
     balances = _Balances(kinetics, charge, cooling, feed, decomposition)
     initial_conversion = 0.0 if decomposition is None else float(decomposition.initial_conversion)
     initial_state = np.array(
@@ -1377,6 +1385,51 @@ def _refine_maximum(function, times, values, index):
     return float(times[index]), float(values[index])
 
 
+def _time_of_first_crossing(trajectory, times, temperatures, threshold, failure_time) -> float:
+    """Time after the failure [s] at which the temperature first reaches ``threshold`` [K]:
+    bracketed on the solver steps, located on the dense output; inf if never, 0 if at once."""
+    above = np.flatnonzero(temperatures >= threshold)
+    if above.size == 0:
+        return math.inf
+    if above[0] == 0:
+        return 0.0
+    from scipy.optimize import brentq
+
+    right = float(times[above[0]])
+    left = float(times[above[0] - 1])
+    crossing = brentq(lambda t: float(trajectory(t)[_TEMPERATURE]) - threshold, left, right,
+                      xtol=1e-10 * max(right, 1.0))
+    return crossing - failure_time
+
+
+def _refined_maxima(trajectory, times, state, synthesis_temperature, step_times, step_rates,
+                    reference_heat, specific_heat):
+    """(maximum temperature [K], maximum synthesis temperature [K], time of the maximum heating
+    rate [s], maximum heating rate [K/s]) of a continuation, refined on the dense output."""
+
+    def temperature_at(time):
+        return float(trajectory(time)[_TEMPERATURE])
+
+    def synthesis_temperature_at(time):
+        point = trajectory(time)
+        return float(
+            point[_TEMPERATURE]
+            - (point[_DECOMPOSITION_HEAT] - reference_heat) / (point[_MASS] * specific_heat)
+        )
+
+    index = int(np.argmax(state[_TEMPERATURE]))
+    _, maximum_temperature = _refine_maximum(temperature_at, times, state[_TEMPERATURE], index)
+    index = int(np.argmax(synthesis_temperature))
+    _, maximum_synthesis = _refine_maximum(
+        synthesis_temperature_at, times, synthesis_temperature, index
+    )
+    index = int(np.argmax(step_rates))
+    time_of_maximum_rate, maximum_rate = _refine_maximum(
+        trajectory.temperature_rate, step_times, step_rates, index
+    )
+    return maximum_temperature, maximum_synthesis, time_of_maximum_rate, maximum_rate
+
+
 def failure_continuation(
     normal: NormalOperation,
     failure_time: float,
@@ -1450,42 +1503,10 @@ def failure_continuation(
         state[_MASS] * specific_heat
     )
 
-    def temperature_at(time):
-        return float(trajectory(time)[_TEMPERATURE])
-
-    def synthesis_temperature_at(time):
-        point = trajectory(time)
-        return float(
-            point[_TEMPERATURE]
-            - (point[_DECOMPOSITION_HEAT] - reference_heat) / (point[_MASS] * specific_heat)
-        )
-
-    index = int(np.argmax(state[_TEMPERATURE]))
-    _, maximum_temperature = _refine_maximum(temperature_at, times, state[_TEMPERATURE], index)
-    index = int(np.argmax(synthesis_temperature))
-    _, maximum_synthesis = _refine_maximum(
-        synthesis_temperature_at, times, synthesis_temperature, index
-    )
-    index = int(np.argmax(step_rates))
-    time_of_maximum_rate, maximum_rate = _refine_maximum(
-        trajectory.temperature_rate, step_times, step_rates, index
-    )
-
-    # First crossing of MTT: bracketed on the solver steps, located on the dense output.
-    above = np.flatnonzero(state[_TEMPERATURE] >= mtt)
-    if above.size == 0:
-        time_to_mtt = math.inf
-    elif above[0] == 0:
-        time_to_mtt = 0.0
-    else:
-        from scipy.optimize import brentq
-
-        right = float(times[above[0]])
-        left = float(times[above[0] - 1])
-        crossing = brentq(
-            lambda t: temperature_at(t) - mtt, left, right, xtol=1e-10 * max(right, 1.0)
-        )
-        time_to_mtt = crossing - t_f
+    (maximum_temperature, maximum_synthesis, time_of_maximum_rate,
+     maximum_rate) = _refined_maxima(trajectory, times, state, synthesis_temperature, step_times,
+                                     step_rates, reference_heat, specific_heat)
+    time_to_mtt = _time_of_first_crossing(trajectory, times, state[_TEMPERATURE], mtt, t_f)
     warnings: list[str] = []
     modelled = normal.decomposition is not None
     if modelled:
@@ -1882,6 +1903,105 @@ class DosingAssessment:
     warnings: tuple[DosingWarning, ...]
 
 
+def _accumulation_warnings(normal, limit, stated_accumulation, warnings) -> float:
+    """Maximum X_ac [-] of the run; warns above ``limit`` and when a stated value is lower."""
+    maximum_accumulation = float(np.max(normal.accumulation))
+    if maximum_accumulation > limit:
+        kind = (
+            "semi-batch" if normal.is_semi_batch else "batch (everything is present at the start)"
+        )
+        warnings.append(
+            DosingWarning(
+                "accumulation",
+                f"maximum accumulation {maximum_accumulation:.3f} exceeds the limit {limit:.3f} "
+                f"({kind}); a cooling failure then releases much of the reaction heat",
+                maximum_accumulation,
+                limit,
+            )
+        )
+    if stated_accumulation is not None:
+        stated = require_non_negative(stated_accumulation, "stated_accumulation")
+        if stated < maximum_accumulation:
+            warnings.append(
+                DosingWarning(
+                    "stated_accumulation_low",
+                    f"stated accumulation {stated:.3f} is lower than the simulated maximum "
+                    f"{maximum_accumulation:.3f}; MTSR from the stated value is not conservative",
+                    stated,
+                    maximum_accumulation,
+                )
+            )
+    return maximum_accumulation
+
+
+def _cooling_capacity_at_process_temperature(normal, t_p, warnings) -> float:
+    """UA_eff (T_p - T_c) at the initial fill [W]; warns when the coolant is not colder."""
+    balances = normal._balances
+    ua_initial = balances.effective_ua(normal.cooling.ua, normal.charge.initial_mass)
+    driving = t_p - normal.cooling.coolant_temperature
+    capacity = ua_initial * driving
+    if driving <= 0.0:
+        warnings.append(
+            DosingWarning(
+                "no_cooling_driving_force",
+                f"coolant temperature {normal.cooling.coolant_temperature:.2f} K is not below the "
+                f"process temperature {t_p:.2f} K: the jacket cannot remove reaction heat",
+                driving,
+                0.0,
+            )
+        )
+    return capacity
+
+
+def _feed_warnings(normal, t_p, capacity, da_limit, warnings) -> tuple[float, float]:
+    """Dosing-controlled heat release [W] and the Damkoehler number of the feed [-], with their
+    warnings (inf and 0 W without a feed)."""
+    balances = normal._balances
+    heat = -normal.kinetics.molar_enthalpy
+    dosing_heat = 0.0
+    damkoehler = math.inf
+    feed = normal.feed
+    if feed is not None:
+        for start, end, fraction in feed.profile:
+            rate = fraction / (end - start)
+            mass_rate = rate * feed.mass
+            release = heat * rate * feed.moles_b - mass_rate * balances.specific_heat * (
+                t_p - feed.feed_temperature
+            )
+            dosing_heat = max(dosing_heat, release)
+        if dosing_heat > capacity:
+            warnings.append(
+                DosingWarning(
+                    "dosing_faster_than_cooling",
+                    f"dosing-controlled heat release {dosing_heat / 1e3:.4g} kW exceeds the "
+                    f"cooling capacity {capacity / 1e3:.4g} kW at T_p: dosing faster than the "
+                    "vessel can cool",
+                    dosing_heat,
+                    capacity,
+                )
+            )
+        dose_time = feed.end_time - feed.begin_time
+        k = normal.kinetics.rate_constant(t_p)
+        if normal.kinetics.scheme == "second-order":
+            final_volume = normal.final_mass / normal.charge.density
+            total_b = normal.charge.initial_moles_b + feed.moles_b
+            damkoehler = k * dose_time * total_b / final_volume
+        else:
+            damkoehler = k * dose_time
+        if damkoehler < da_limit:
+            warnings.append(
+                DosingWarning(
+                    "reaction_too_slow_for_feed",
+                    f"Damkoehler number of the feed {damkoehler:.3g} is below {da_limit:.3g}: at "
+                    f"{t_p:.2f} K the reaction cannot keep pace with the feed and reactant "
+                    "accumulates (process temperature too low or dosing too fast)",
+                    damkoehler,
+                    da_limit,
+                )
+            )
+    return dosing_heat, damkoehler
+
+
 def dosing_warnings(
     normal: NormalOperation,
     accumulation_limit: float = 0.3,
@@ -1933,89 +2053,10 @@ def dosing_warnings(
         if process_temperature is None
         else require_positive(process_temperature, "process_temperature")
     )
-    balances = normal._balances
     warnings: list[DosingWarning] = []
-    maximum_accumulation = float(np.max(normal.accumulation))
-    if maximum_accumulation > limit:
-        kind = (
-            "semi-batch" if normal.is_semi_batch else "batch (everything is present at the start)"
-        )
-        warnings.append(
-            DosingWarning(
-                "accumulation",
-                f"maximum accumulation {maximum_accumulation:.3f} exceeds the limit {limit:.3f} "
-                f"({kind}); a cooling failure then releases much of the reaction heat",
-                maximum_accumulation,
-                limit,
-            )
-        )
-    if stated_accumulation is not None:
-        stated = require_non_negative(stated_accumulation, "stated_accumulation")
-        if stated < maximum_accumulation:
-            warnings.append(
-                DosingWarning(
-                    "stated_accumulation_low",
-                    f"stated accumulation {stated:.3f} is lower than the simulated maximum "
-                    f"{maximum_accumulation:.3f}; MTSR from the stated value is not conservative",
-                    stated,
-                    maximum_accumulation,
-                )
-            )
-    ua_initial = balances.effective_ua(normal.cooling.ua, normal.charge.initial_mass)
-    driving = t_p - normal.cooling.coolant_temperature
-    capacity = ua_initial * driving
-    if driving <= 0.0:
-        warnings.append(
-            DosingWarning(
-                "no_cooling_driving_force",
-                f"coolant temperature {normal.cooling.coolant_temperature:.2f} K is not below the "
-                f"process temperature {t_p:.2f} K: the jacket cannot remove reaction heat",
-                driving,
-                0.0,
-            )
-        )
-    heat = -normal.kinetics.molar_enthalpy
-    dosing_heat = 0.0
-    damkoehler = math.inf
-    feed = normal.feed
-    if feed is not None:
-        for start, end, fraction in feed.profile:
-            rate = fraction / (end - start)
-            mass_rate = rate * feed.mass
-            release = heat * rate * feed.moles_b - mass_rate * balances.specific_heat * (
-                t_p - feed.feed_temperature
-            )
-            dosing_heat = max(dosing_heat, release)
-        if dosing_heat > capacity:
-            warnings.append(
-                DosingWarning(
-                    "dosing_faster_than_cooling",
-                    f"dosing-controlled heat release {dosing_heat / 1e3:.4g} kW exceeds the "
-                    f"cooling capacity {capacity / 1e3:.4g} kW at T_p: dosing faster than the "
-                    "vessel can cool",
-                    dosing_heat,
-                    capacity,
-                )
-            )
-        dose_time = feed.end_time - feed.begin_time
-        k = normal.kinetics.rate_constant(t_p)
-        if normal.kinetics.scheme == "second-order":
-            final_volume = normal.final_mass / normal.charge.density
-            total_b = normal.charge.initial_moles_b + feed.moles_b
-            damkoehler = k * dose_time * total_b / final_volume
-        else:
-            damkoehler = k * dose_time
-        if damkoehler < da_limit:
-            warnings.append(
-                DosingWarning(
-                    "reaction_too_slow_for_feed",
-                    f"Damkoehler number of the feed {damkoehler:.3g} is below {da_limit:.3g}: at "
-                    f"{t_p:.2f} K the reaction cannot keep pace with the feed and reactant "
-                    "accumulates (process temperature too low or dosing too fast)",
-                    damkoehler,
-                    da_limit,
-                )
-            )
+    maximum_accumulation = _accumulation_warnings(normal, limit, stated_accumulation, warnings)
+    capacity = _cooling_capacity_at_process_temperature(normal, t_p, warnings)
+    dosing_heat, damkoehler = _feed_warnings(normal, t_p, capacity, da_limit, warnings)
     peak_release = float(np.max(normal.reaction_heat_rate))
     if peak_release > capacity and not any(
         w.code == "dosing_faster_than_cooling" for w in warnings
