@@ -242,6 +242,54 @@ def test_models_parameters_and_returns_carry_units():
     assert not gaps, f"{len(gaps)} entries without a unit in brackets:\n" + "\n".join(gaps)
 
 
+# Parameter names that denote a physical quantity (a heuristic: the name says what it is).
+DIMENSIONAL_NAME = re.compile(
+    r"temperature|pressure|mass|time|energy|heat|enthalpy|volume|area|diameter|rate|density|"
+    r"duration|capacity|height|level|_k$|_s$|_pa$|^ua$")
+
+
+def dimensional_gaps(source: str, where: str) -> list[str]:
+    """Float or array parameters with a physical-quantity name and no bracketed unit.
+
+    Parameters
+    ----------
+    source : str
+        Python source text of the module. [text]
+    where : str
+        Label used in the messages (the module path). [text]
+
+    Returns
+    -------
+    list of str
+        One message per entry without a unit. [text]
+    """
+    gaps = []
+    for name, func in _public_functions(ast.parse(source)):
+        documented = _documented_names(_section(ast.get_docstring(func) or "", "Parameters"))
+        for param, text in documented.items():
+            kind = text.split("\n")[0].partition(" : ")[2]
+            if (DIMENSIONAL_NAME.search(param) and re.search(r"float|array", kind)
+                    and not _has_unit(text)):
+                gaps.append(f"{where}:{func.lineno} {name}({param}): no [unit]")
+    return gaps
+
+
+def test_dimensional_parameters_of_analyses_io_runs_carry_units():
+    gaps = []
+    for folder in ("analyses", "io", "runs"):
+        for path in sorted((PACKAGE / folder).rglob("*.py")):
+            gaps += dimensional_gaps(path.read_text(encoding="utf-8"), _relative(path))
+    assert not gaps, f"{len(gaps)} dimensional parameters without a unit:\n" + "\n".join(gaps)
+
+
+def test_dimensional_checker_can_fail():
+    source = ('def f(coolant_temperature, name):\n    """F.\n\n    Parameters\n    ----------\n'
+              '    coolant_temperature : float\n        Coolant.\n    name : str\n        Name.\n'
+              '    """\n')
+    assert dimensional_gaps(source, "f.py") == ["f.py:1 f(coolant_temperature): no [unit]"]
+    assert dimensional_gaps(source.replace("Coolant.", "Coolant. [K]"), "f.py") == []
+
+
 MODEL_MODULES = sorted(
     f"screen.models.{info.name}" for info in pkgutil.iter_modules(screen.models.__path__)
 )

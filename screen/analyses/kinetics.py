@@ -137,7 +137,7 @@ def analyse_kinetics(thermogram_paths=(), peaks_path=None, sample_masses=(), hea
     specific_heat : str
         c'p for the TD24 estimates (``"1.5 kJ/(kg K)"``).
     confidence_level : float
-        Two-sided confidence level of all intervals.
+        Two-sided confidence level of all intervals. [-]
 
     Returns
     -------

@@ -1215,6 +1215,14 @@ def temperature_for_time_to_maximum_rate(kinetics, specific_heat, target_time,
     ------
     SolverError
         No root in [lower, upper]; the message gives TMRad at both ends.
+
+    References
+    ----------
+    TD24 as the temperature limit of the criticality classes: F. Stoessel, "Thermal Safety of
+    Chemical Processes: Risk Assessment and Process Design", Wiley-VCH 2008, ch. 3 (from memory,
+    verify against the source). A. Keller et al., "Estimation of the time to maximum rate using
+    dynamic DSC experiments", J. Loss Prev. Process Ind. 10 (1997) 31-41 (from memory, verify
+    against the source).
     """
     hours = float(target_time) / SECONDS_PER_HOUR
     return _scalar_temperature_for(kinetics, specific_heat, target_time, f"TD{hours:g}",
@@ -1247,6 +1255,14 @@ def td24(kinetics, specific_heat, lower=DEFAULT_LOWER_TEMPERATURE,
         No root in [lower, upper]; the message gives TMRad at both ends.
     ModelDomainError
         Array kinetics or invalid arguments.
+
+    References
+    ----------
+    TD24 as the temperature limit of the criticality classes: F. Stoessel, "Thermal Safety of
+    Chemical Processes: Risk Assessment and Process Design", Wiley-VCH 2008, ch. 3 (from memory,
+    verify against the source). A. Keller et al., "Estimation of the time to maximum rate using
+    dynamic DSC experiments", J. Loss Prev. Process Ind. 10 (1997) 31-41 (from memory, verify
+    against the source).
     """
     return _scalar_temperature_for(kinetics, specific_heat, 24.0 * SECONDS_PER_HOUR, "td24",
                                    lower, upper)
@@ -1278,6 +1294,14 @@ def td8(kinetics, specific_heat, lower=DEFAULT_LOWER_TEMPERATURE,
         No root in [lower, upper]; the message gives TMRad at both ends.
     ModelDomainError
         Array kinetics or invalid arguments.
+
+    References
+    ----------
+    TD24 as the temperature limit of the criticality classes: F. Stoessel, "Thermal Safety of
+    Chemical Processes: Risk Assessment and Process Design", Wiley-VCH 2008, ch. 3 (from memory,
+    verify against the source). A. Keller et al., "Estimation of the time to maximum rate using
+    dynamic DSC experiments", J. Loss Prev. Process Ind. 10 (1997) 31-41 (from memory, verify
+    against the source).
     """
     return _scalar_temperature_for(kinetics, specific_heat, 8.0 * SECONDS_PER_HOUR, "td8",
                                    lower, upper)
