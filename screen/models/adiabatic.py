@@ -179,7 +179,7 @@ def corrected_temperature(measured_temperature, measured_onset, corrected_onset,
     measured_onset, corrected_onset : float
         [K]
     phi : float
-        [-]
+        Thermal inertia of the test, phi = 1 + m_cell c'p,cell/(m_sample c'p,sample). [-]
 
     Returns
     -------
@@ -204,7 +204,7 @@ def corrected_self_heat_rate(measured_rate, measured_temperature, corrected_temp
     corrected_temperature_ : float or array
         From :func:`corrected_temperature`. [K]
     phi : float
-        [-]
+        Thermal inertia of the test, phi = 1 + m_cell c'p,cell/(m_sample c'p,sample). [-]
     activation_energy : float
         [J/mol]
 
@@ -228,7 +228,7 @@ def time_to_maximum_rate_phi_one(measured_time, phi):
     measured_time : float
         Time to maximum rate in the cell. [s]
     phi : float
-        [-]
+        Thermal inertia of the test, phi = 1 + m_cell c'p,cell/(m_sample c'p,sample). [-]
 
     Returns
     -------

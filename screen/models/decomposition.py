@@ -218,7 +218,7 @@ class DecompositionKinetics:
         Returns
         -------
         DecompositionKinetics
-            [object]
+            The kinetics (SI fields). [object]
 
         Raises
         ------
@@ -354,7 +354,7 @@ class DecompositionKinetics:
         Returns
         -------
         DecompositionKinetics
-            [object]
+            The kinetics (SI fields). [object]
 
         Raises
         ------
@@ -1345,8 +1345,8 @@ def zero_order_is_conservative(kinetics, start_temperature, specific_heat):
     Returns
     -------
     conservative : bool or numpy.ndarray of bool
-        True where the zero-order estimate is conservative (broadcast shape; bool for scalars).
-        [bool]
+        True where the zero-order estimate is conservative (broadcast shape; bool for
+        scalars). [bool]
     reason : str or list
         Why, one sentence per sample: a str for scalar input, else a nested list of str with
         the broadcast shape (``numpy.ndarray.tolist`` layout). [text]

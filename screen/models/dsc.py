@@ -510,7 +510,7 @@ def astm_e698(heating_rates, peak_temperatures, confidence_level=0.95, tolerance
     Returns
     -------
     AstmE698Result
-        [object]
+        Refined E, ln A and their intervals (SI, see the class). [object]
 
     Notes
     -----
@@ -571,7 +571,7 @@ class IsoconversionalResult:
     r_squared : numpy.ndarray
         Per conversion level. [-]
     confidence_level : float
-        [-]
+        Two-sided confidence level of the intervals. [-]
     """
 
     method: str
@@ -678,7 +678,7 @@ def friedman(conversion, temperatures, rates, confidence_level=0.95):
     Returns
     -------
     IsoconversionalResult
-        [object]
+        E_alpha per conversion level with intervals (SI, see the class). [object]
 
     Notes
     -----
@@ -734,7 +734,7 @@ def flynn_wall_ozawa(conversion, temperatures, heating_rates, confidence_level=0
     Returns
     -------
     IsoconversionalResult
-        [object]
+        E_alpha per conversion level with intervals (SI, see the class). [object]
 
     Notes
     -----
@@ -1012,7 +1012,7 @@ def analyse_peak(time, temperature, heat_flow, baseline="linear", temperature_wi
     Returns
     -------
     PeakAnalysis
-        [object]
+        Baseline, energy and characteristic temperatures of the run (SI, see the class). [object]
 
     Notes
     -----
@@ -1391,8 +1391,8 @@ def fit_reaction_model(analyses, heating_rates, choice="auto", conversion_range=
     Parameters
     ----------
     analyses : sequence of PeakAnalysis
-        One per run (at least one; two or more heating rates make E and the model separable).
-        [object]
+        One per run (at least one; two or more heating rates make E and the model
+        separable). [object]
     heating_rates : array_like
         Heating rate of each run. [K/s]
     choice : {"auto", "nth-order", "autocatalytic"}
@@ -1407,7 +1407,7 @@ def fit_reaction_model(analyses, heating_rates, choice="auto", conversion_range=
     Returns
     -------
     FittedModel
-        [object]
+        Fitted model, its parameters (SI) and the reason for the choice. [object]
 
     Notes
     -----

@@ -1084,8 +1084,8 @@ def simulate_normal_operation(
     feed : Feed, optional
         Dosing of B; ``None`` or an empty feed is a batch run. [object]
     decomposition : DecompositionHeatSource, optional
-        Decomposition of the reaction mass (duck-typed, see :class:`DecompositionHeatSource`).
-        [object]
+        Decomposition of the reaction mass (duck-typed, see
+        :class:`DecompositionHeatSource`). [object]
     output_points : int
         Number of evenly spaced output times (feed breakpoints are added). [-]
     method : {"LSODA", "Radau", "BDF"}
@@ -1464,8 +1464,8 @@ def failure_continuation(
     Returns
     -------
     FailureContinuation
-        Temperature course, MTSR reached, time to MTT and to maximum rate, decomposition flag.
-        [object]
+        Temperature course, MTSR reached, time to MTT and to maximum rate, decomposition
+        flag (SI). [object]
     """
     t_f = require_finite(failure_time, "failure_time")
     if t_f < normal.start_time or t_f > normal.end_time:
