@@ -986,6 +986,59 @@ def _find_limits(s_smooth, peak, threshold, extension=0.5):
     return left, right
 
 
+def _onset_and_detection(temp, s_smooth, start, peak, height, detection_limit):
+    """Extrapolated onset [K] (tangent at the steepest point of the leading edge, the usual
+    extrapolated-onset construction; verify against ASTM E537) and the temperature where the
+    corrected signal first reaches the detection limit [K] (None when the peak stays below it)."""
+    # extrapolated onset: steepest point of the leading edge
+    lead = slice(start, peak + 1)
+    if peak - start >= 3:
+        slope_edge = np.gradient(s_smooth[lead], temp[lead])
+        i = start + int(np.argmax(slope_edge))
+        slope_at = float(slope_edge[i - start])
+    else:
+        i, slope_at = peak, 0.0
+    if slope_at > 0:
+        onset = float(temp[i] - s_smooth[i] / slope_at)
+    else:
+        onset = float(temp[start])
+
+    detection = None
+    if height >= detection_limit:
+        j = peak
+        while j > start and s_smooth[j] >= detection_limit:
+            j -= 1
+        if s_smooth[j] < detection_limit:
+            fraction = (detection_limit - s_smooth[j]) / (s_smooth[j + 1] - s_smooth[j])
+            detection = float(temp[j] + fraction * (temp[j + 1] - temp[j]))
+        else:
+            detection = float(temp[start])
+
+    return onset, detection
+
+
+def _sigmoidal_baseline(t, y, base, s, sel, start, end, ya, yb, corrected_with):
+    """Iterate the sigmoidal baseline (the baseline follows the conversion between the two
+    anchors) to a fixed point; returns the baseline and the corrected signal."""
+    from scipy.integrate import cumulative_trapezoid
+
+    for _ in range(50):
+        cum = cumulative_trapezoid(s[sel], t[sel], initial=0.0)
+        if cum[-1] <= 0:
+            break
+        alpha = np.clip(cum / cum[-1], 0.0, 1.0)
+        new_base = base.copy()
+        new_base[sel] = ya + (yb - ya) * alpha
+        new_base[:start] = ya
+        new_base[end + 1:] = yb
+        change = float(np.max(np.abs(new_base - base)))
+        base = new_base
+        s = corrected_with(base)
+        if change <= 1e-9 * max(1.0, float(np.max(np.abs(y)))):
+            break
+    return base, s
+
+
 def analyse_peak(time, temperature, heat_flow, baseline="linear", temperature_window=None,
                  detection_limit=CRUDE_DETECTION_LIMIT, threshold_fraction=0.005):
     """Baseline, energy, conversion, peak and onset temperatures of an exothermic DSC peak.
@@ -1110,20 +1163,7 @@ def analyse_peak(time, temperature, heat_flow, baseline="linear", temperature_wi
 
     s = corrected_with(base)
     if baseline == "sigmoidal":
-        for _ in range(50):
-            cum = cumulative_trapezoid(s[sel], t[sel], initial=0.0)
-            if cum[-1] <= 0:
-                break
-            alpha = np.clip(cum / cum[-1], 0.0, 1.0)
-            new_base = base.copy()
-            new_base[sel] = ya + (yb - ya) * alpha
-            new_base[:start] = ya
-            new_base[end + 1:] = yb
-            change = float(np.max(np.abs(new_base - base)))
-            base = new_base
-            s = corrected_with(base)
-            if change <= 1e-9 * max(1.0, float(np.max(np.abs(y)))):
-                break
+        base, s = _sigmoidal_baseline(t, y, base, s, sel, start, end, ya, yb, corrected_with)
 
     cum = np.zeros(n)
     cum[sel] = cumulative_trapezoid(s[sel], t[sel], initial=0.0)
@@ -1140,29 +1180,8 @@ def analyse_peak(time, temperature, heat_flow, baseline="linear", temperature_wi
     height = float(s_smooth[peak])
     peak_temperature = _refine_peak(temp, s_smooth, peak, start, end)
 
-    # extrapolated onset: steepest point of the leading edge
-    lead = slice(start, peak + 1)
-    if peak - start >= 3:
-        slope_edge = np.gradient(s_smooth[lead], temp[lead])
-        i = start + int(np.argmax(slope_edge))
-        slope_at = float(slope_edge[i - start])
-    else:
-        i, slope_at = peak, 0.0
-    if slope_at > 0:
-        onset = float(temp[i] - s_smooth[i] / slope_at)
-    else:
-        onset = float(temp[start])
-
-    detection = None
-    if height >= detection_limit:
-        j = peak
-        while j > start and s_smooth[j] >= detection_limit:
-            j -= 1
-        if s_smooth[j] < detection_limit:
-            fraction = (detection_limit - s_smooth[j]) / (s_smooth[j + 1] - s_smooth[j])
-            detection = float(temp[j] + fraction * (temp[j + 1] - temp[j]))
-        else:
-            detection = float(temp[start])
+    onset, detection = _onset_and_detection(temp, s_smooth, start, peak, height,
+                                            detection_limit)
 
     heating_rate = float(np.polyfit(t[sel], temp[sel], 1)[0])
     return PeakAnalysis(
