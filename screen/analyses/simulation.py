@@ -350,28 +350,16 @@ class _SimulationRun:
 def _integrate_and_scan(run) -> None:
     """Normal operation (end time extended until the synthesis is over), the scan of the
     failure time and the dosing checks."""
-    from screen.models.reactor import dosing_warnings, simulate_normal_operation, worst_case_scan
+    from screen.models.reactor import dosing_warnings
 
     inputs, path, curves = run.inputs, run.case.path, run.curves
     kinetics, charge, cooling, feed = run.kinetics, run.charge, run.cooling, run.feed
     decomposition, mtt, scan_points = run.decomposition, run.mtt, run.scan_points
     t_p, stated = run.t_p, run.stated
-    end_time, end_basis = inputs.end_time, inputs.end_time_source
     try:
-        while True:
-            normal = simulate_normal_operation(
-                kinetics, charge, cooling, end_time, feed=feed, decomposition=decomposition,
-                output_points=501 if curves else 201)
-            # A default end time is extended until the synthesis is over, so that the scan
-            # covers every failure time that still holds reactant (design).
-            if (inputs.end_time_source == "given" or normal.accumulation[-1] <= END_ACCUMULATION
-                    or end_time >= MAXIMUM_END_TIME):
-                break
-            end_time = min(2.0 * end_time, MAXIMUM_END_TIME)
-            end_basis = (f"{inputs.end_time_source}, extended to "
-                         f"{end_time / SECONDS_PER_HOUR:.3g} h until X_ac <= {END_ACCUMULATION}")
-        scan = worst_case_scan(normal, mtt, n_initial=60 if curves else 30, refine=True,
-                               n_failure_times=scan_points, duration=FAILURE_DURATION)
+        normal, scan, end_time, end_basis = _normal_and_scan(
+            inputs.end_time, inputs.end_time_source, kinetics, charge, cooling, feed,
+            decomposition, mtt, scan_points, curves)
         dosing = dosing_warnings(normal, inputs.accumulation_limit, process_temperature=t_p,
                                  stated_accumulation=stated)
     except ModelDomainError as exc:
@@ -382,6 +370,57 @@ def _integrate_and_scan(run) -> None:
 
     run.normal, run.scan, run.dosing = normal, scan, dosing
     run.end_time, run.end_basis = end_time, end_basis
+
+
+#: Simulations kept for reuse (design): reruns of one case that change no input of the
+#: simulation (limits or sweeps of the accumulation, of another vessel ...) reuse the run.
+_RUN_CACHE: dict = {}
+_RUN_CACHE_SIZE = 8
+
+
+def _normal_and_scan(end_time, end_source, kinetics, charge, cooling, feed, decomposition, mtt,
+                     scan_points, curves):
+    """Normal operation and the failure-time scan, memoised on every model input (exact: the
+    key is the pickled inputs). The results are read, never changed, by the callers."""
+    import pickle
+
+    try:
+        key = pickle.dumps((end_time, end_source, kinetics, charge, cooling, feed,
+                            vars(decomposition), mtt, scan_points, curves))
+    except Exception:  # an input that cannot be pickled: no reuse
+        key = None
+    if key is not None and key in _RUN_CACHE:
+        return _RUN_CACHE[key]
+    value = _integrate_normal_and_scan(end_time, end_source, kinetics, charge, cooling, feed,
+                                       decomposition, mtt, scan_points, curves)
+    if key is not None:
+        if len(_RUN_CACHE) >= _RUN_CACHE_SIZE:
+            _RUN_CACHE.pop(next(iter(_RUN_CACHE)))
+        _RUN_CACHE[key] = value
+    return value
+
+
+def _integrate_normal_and_scan(end_time, end_source, kinetics, charge, cooling, feed,
+                               decomposition, mtt, scan_points, curves):
+    """Normal operation (end time extended until the synthesis is over) and the scan."""
+    from screen.models.reactor import simulate_normal_operation, worst_case_scan
+
+    end_basis = end_source
+    while True:
+        normal = simulate_normal_operation(
+            kinetics, charge, cooling, end_time, feed=feed, decomposition=decomposition,
+            output_points=501 if curves else 201)
+        # A default end time is extended until the synthesis is over, so that the scan
+        # covers every failure time that still holds reactant (design).
+        if (end_source == "given" or normal.accumulation[-1] <= END_ACCUMULATION
+                or end_time >= MAXIMUM_END_TIME):
+            break
+        end_time = min(2.0 * end_time, MAXIMUM_END_TIME)
+        end_basis = (f"{end_source}, extended to "
+                     f"{end_time / SECONDS_PER_HOUR:.3g} h until X_ac <= {END_ACCUMULATION}")
+    scan = worst_case_scan(normal, mtt, n_initial=60 if curves else 30, refine=True,
+                           n_failure_times=scan_points, duration=FAILURE_DURATION)
+    return normal, scan, end_time, end_basis
 
 
 def _derive_figures(run, result) -> None:

@@ -473,7 +473,12 @@ class Criterion:
             # Guides only (the class itself is read from the screening): the ordering of
             # MTSR, MTT and TD24 that separates class <= k from the classes above it
             # (Stoessel 1993; see screen.models.criticality).
-            mtt, td24 = r.get("mtt_degC"), r.get("td24_degC")
+            # The lowest of the TD24 values (kinetics, Townsend-Tou, governing) and of the MTTs
+            # (case, per vessel): continuous where the governing value switches.
+            td24 = _lowest([r.get("td24_degC"), r.get("td24_townsend_tou_degC"),
+                            r.get("td24_governing_degC")])
+            mtt = _lowest([r.get("mtt_degC")] + [v.get("mtt_degC") for v in r.get("vessels") or []
+                                                 if isinstance(v, dict)])
             if None in (mtt, td24, mtsr):
                 return []
             below_tp = _difference(td24, r.get("process_temperature_degC"))
@@ -486,7 +491,7 @@ class Criterion:
             return [max(td24 - mtsr, td24 - mtt), below_tp]
         if self.name == "onset_margin":
             value = _governing(r, "onset_margin_governing_K", "onset_margin_K")
-            td24 = r.get("td24_degC")
+            td24 = _lowest([r.get("td24_degC"), r.get("td24_governing_degC")])
             return [None if td24 is None or mtsr is None else td24 - mtsr - self.margin,
                     None if value is None else value - self.margin]
         if self.name == "decomposition_stability":
@@ -498,15 +503,18 @@ class Criterion:
             ratio, slope = entry.get("synthesis_cooling_ratio"), entry.get("synthesis_slope_ratio")
             return [None if ratio is None else ratio - 1.0, None if slope is None else 1.0 - slope]
         if self.name == "barrier":
-            entry = _vessel_entry((r.get("barrier") or {}).get("vessels"), self.vessel) or {}
-            return [_difference(entry.get("condenser_capacity_kW"),
-                                entry.get("condenser_duty_needed_kW")),
-                    _difference(entry.get("flooding_velocity_m_per_s"),
-                                entry.get("vapour_line_velocity_m_per_s")),
-                    _difference(entry.get("solvent_present_kg"),
-                                entry.get("solvent_evaporated_kg")),
-                    _difference(entry.get("swelling_onset_velocity_m_per_s"),
-                                entry.get("surface_velocity_m_per_s"))]
+            from screen.models.evaporation import DEFAULT_MARGIN
+
+            block = r.get("barrier") or {}
+            entry = _vessel_entry(block.get("vessels"), self.vessel) or {}
+            keep = 1.0 - DEFAULT_MARGIN  # "holds" below (1 - margin) of each limit
+            pairs = (("condenser_capacity_kW", "condenser_duty_needed_kW"),
+                     ("flooding_velocity_m_per_s", "vapour_line_velocity_m_per_s"),
+                     ("solvent_present_kg", "solvent_evaporated_kg"),
+                     ("swelling_onset_velocity_m_per_s", "surface_velocity_m_per_s"))
+            called = _difference(r.get("mtt_degC"), mtsr)  # not called upon below the MTT
+            return [called] + [None if entry.get(a) is None or entry.get(b) is None
+                               else keep * float(entry[a]) - float(entry[b]) for a, b in pairs]
         if self.name == "relief_pressure":
             from screen.models.pressure import RELIEF_MARGIN
 
@@ -523,6 +531,11 @@ def _difference(a, b):
         return None
     value = float(a) - float(b)
     return value if math.isfinite(value) else None
+
+
+def _lowest(values):
+    values = [float(v) for v in values if v is not None]
+    return min(values) if values else None
 
 
 def _mtsr_guide(r: dict):
@@ -663,22 +676,29 @@ class _Evaluator:
 
 class _Secant:
     """Trial points for :func:`screen.runs.sweep.bisect_change`: secant steps on a figure that
-    changes sign across the bracket, with Illinois weights (the end that stays has its figure
-    halved each time) so that both ends converge; ``None`` (the midpoint) otherwise."""
+    changes sign across the bracket, with Illinois weights (when the same end moves twice in a
+    row, the figure of the end that stays is halved) so that both ends converge; ``None`` (the
+    midpoint) otherwise. Illinois: M. Dowell, P. Jarratt, BIT 11 (1971) 168-174."""
 
     def __init__(self, criterion: Criterion, tolerance: float):
         self.criterion = criterion
         self.tolerance = tolerance
         self.previous = None
         self.weights = [1.0, 1.0]
+        self.last_moved = None
         self.steps = 0
 
     def __call__(self, low, high, row_low, row_high):
         if self.previous is not None:
-            if low == self.previous[0] and high != self.previous[1]:
-                self.weights = [self.weights[0] * 0.5, 1.0]
-            elif high == self.previous[1] and low != self.previous[0]:
-                self.weights = [1.0, self.weights[1] * 0.5]
+            moved = "high" if low == self.previous[0] else "low"
+            if moved == self.last_moved:
+                # The same end moved twice in a row: halve the weight of the end that stays
+                # (Illinois), so that the next trial point falls beyond the root.
+                index = 0 if moved == "high" else 1
+                self.weights[index] *= 0.5
+            else:
+                self.weights = [1.0, 1.0]
+            self.last_moved = moved
         self.previous = (low, high)
         self.steps += 1
         if self.steps > 30:
