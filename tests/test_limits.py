@@ -334,3 +334,31 @@ def test_window_grid_classes_match_mtsr_formula():
             mtsr = t_p + x_ac * rise
             expected = (1 if mtsr < 110.0 else 3) if mtsr < td24 else 4
             assert window["classes"][j][i] == expected, (t_p, x_ac)
+
+
+RELIEF_TOML = """headspace_volume = "3 m^3"
+relief_set_pressure = "35 bar"
+[solvent]
+name = "toluene"
+pressure = "1.013 bar"
+amount = "2000 kg"
+gas_yield = "0.1 mol/kg"
+"""
+
+
+def test_relief_pressure_limit_flips_one_thousandth_past_it():
+    """The closed-vessel pressure criterion: 1e-3 of the range past the limit it fails, back
+    inside it holds (property of the root finding; the pressure itself is checked in
+    tests/test_pressure.py)."""
+    text = (BASE_TOML.format(mtt="110 degC", q_syn="190 kJ/kg", t_c="15 degC")
+            .replace('max_technical_temperature = "110 degC"\n', '')
+            .replace('energy = "600 kJ/kg"', 'energy = "200 kJ/kg"') + RELIEF_TOML)
+    case = build_case(tomllib.loads(text), path="<limits-test>")
+    found = run(case, vary=["process.accumulation"])
+    e = entry(found, "process.accumulation", "relief_pressure", "R-1")
+    assert e["status"] == "limit" and e["bound"] == "upper" and e["satisfied_now"]
+    item = found.inputs[0]
+    evaluate = L._Evaluator(case, item)
+    criterion = L.Criterion("relief_pressure", "R-1")
+    assert criterion.ok(evaluate(e["value"] - 1e-3))
+    assert not criterion.ok(evaluate(e["value"] + 1e-3))
