@@ -247,8 +247,43 @@ def test_onset_only_crude_estimate(runner, tmp_path):
     expected = townsend_tou_td24(ln_q_inf, energy, 1500.0)
     assert crude["temperature_degC"] + 273.15 == pytest.approx(expected, abs=1e-6)
     assert "50 kJ/mol" in crude["assumptions"] and "20 W/kg" in crude["assumptions"]
+    # Issue 18 item 1: the section stays an onset estimate (basis key), with no model keys the
+    # engine could read as measured kinetics and no key the loader refuses.
     section = tomllib.loads(out.read_text())["decomposition"]
-    assert section["model"] == "zero-order" and section["activation_energy"] == "50 kJ/mol"
+    assert section["basis"] == "onset-estimate"
+    assert section["onset_temperature"] == "185.0 degC"
+    assert not {"model", "activation_energy", "pre_exponential_factor", "order"} & set(section)
+
+
+def test_onset_section_spliced_into_a_case_stays_an_onset_estimate(runner, tmp_path):
+    # Issue 18 item 1 demo: `kinetics --onset "260 degC" --energy "450 J/g" -o` spliced into the
+    # onset-only example gave class 2 "screened" once `order` was deleted; the same onset as
+    # onset_temperature gives "cannot conclude". Fail closed (docs/fail-closed.md): both paths
+    # must agree.
+    from screen.analyses.engine import screen_case
+    from screen.io.case import load_case
+
+    out = tmp_path / "dec.toml"
+    result = runner.invoke(kinetics_command, ["--onset", "260 degC", "--energy", "450 J/g",
+                                              "-o", str(out)])
+    assert result.exit_code == 0, result.stderr
+    base = (ROOT / "cases" / "amidation_onset_only.toml").read_text(encoding="utf-8")
+    spliced = tmp_path / "spliced.toml"
+    spliced.write_text(base[:base.index("[decomposition]")] + out.read_text(), encoding="utf-8")
+    r = screen_case(load_case(spliced), curves=False).results
+    reference = screen_case(load_case(ROOT / "cases" / "amidation_onset_only.toml"),
+                            curves=False).results
+    assert r["decomposition_basis"] == "onset-estimate"
+    assert r["verdict_status"] == reference["verdict_status"] == "cannot-conclude"
+    assert r["criticality_class"] is None
+    assert r["td24_degC"] == pytest.approx(reference["td24_degC"], abs=1e-9)
+    # An older file that still carries the crude model keys but says basis = "onset-estimate".
+    text = spliced.read_text().replace('\nbasis = "onset-estimate"', '\nbasis = "onset-estimate"\n'
+                                       'model = "zero-order"\nactivation_energy = "50 kJ/mol"\n'
+                                       'pre_exponential_factor = "3.5 1/s"')
+    spliced.write_text(text, encoding="utf-8")
+    r = screen_case(load_case(spliced), curves=False).results
+    assert (r["decomposition_basis"], r["verdict_status"]) == ("onset-estimate", "cannot-conclude")
 
 
 def test_two_heating_rates_warn_and_have_no_interval(tmp_path, runner):

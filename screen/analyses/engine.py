@@ -21,6 +21,7 @@ from screen.analyses.inputs import (
     ONSET_ESTIMATE_DETECTION_LIMIT,
     accumulation_mass_ratio,
     characteristic_temperatures,
+    onset_estimate_reference,
     decomposition_kinetics,
     synthesis_specific_energy,
     tmrad_at,
@@ -229,12 +230,22 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                 f"B = E dT_ad/(R T0^2) = {b_number:.3g} at MTSR is small: reactant consumption "
                 f"matters and the zero-order TMRad is only a rough estimate.")
 
+    onset_reference = onset_estimate_reference(case) if basis == "onset-estimate" else None
     if basis == "onset-estimate":
         warnings.append(
             "Decomposition kinetics missing: TMRad and TD24 are a CRUDE estimate from the DSC "
             f"onset alone (zero order, E = {ONSET_ESTIMATE_ACTIVATION_ENERGY / 1000:.0f} kJ/mol, "
-            f"onset read as {ONSET_ESTIMATE_DETECTION_LIMIT:g} W/kg; Keller et al. 1997, "
+            f"{onset_reference['text']}; Keller et al. 1997, "
             f"from memory). Measure the decomposition kinetics before relying on the class.")
+        if not onset_reference["declared"]:
+            warnings.append(
+                "decomposition.onset_type is not declared: an extrapolated (tangent) onset lies "
+                "tens of kelvin above the detection point, so the crude estimate grants no class "
+                "below 5. Declare onset_type = \"detection-point\" with onset_detection_limit, "
+                "or \"extrapolated\" with onset_scan_rate.")
+        if dec.model is not None:
+            warnings.append("decomposition.basis = \"onset-estimate\": the model keys of the "
+                            "section are not used; the section is a crude onset estimate.")
         methods["tmrad"] = ("Crude estimate from the DSC onset (zero order, low activation "
                             "energy, onset as detection limit; Keller et al., J. Loss Prev. "
                             "Process Ind. 10 (1997) 31-41, from memory)")
@@ -269,7 +280,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     reported_class: int | None = int(klass)
     if basis == "onset-estimate":
         # Fail closed: a crude estimate may confirm a high class but never grant a low one.
-        if klass >= 4:
+        if klass >= 4 and (onset_reference["declared"] or klass >= 5):
             verdict_status = "crude-estimate"
         else:
             verdict_status = "cannot-conclude"
@@ -311,6 +322,14 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
         "verdict_status": verdict_status,
         "verdict": verdict,
     }
+    if onset_reference is not None:
+        results["onset_estimate"] = {
+            "onset_type": onset_reference["onset_type"],
+            "declared": onset_reference["declared"],
+            "reference_temperature_degC": to_celsius(onset_reference["temperature"]),
+            "reference_rate_W_per_kg": onset_reference["rate"],
+            "basis": onset_reference["text"],
+        }
     if dec.onset_temperature is not None:
         onset = float(dec.onset_temperature)
         results["dsc_onset_degC"] = to_celsius(onset)

@@ -31,10 +31,13 @@ def decomposition_kinetics(case):
     from screen.models.decomposition import DecompositionKinetics
 
     dec = case.sections["decomposition"]
-    if dec.model is None:
+    if dec.model is None or dec.basis == "onset-estimate":
+        # A section written from a single onset stays an onset estimate in every path, whatever
+        # model keys it carries (issue 18 item 1).
+        reference = onset_estimate_reference(case)
         kinetics = DecompositionKinetics.from_reference_rate(
             "zero-order", dec.energy, ONSET_ESTIMATE_ACTIVATION_ENERGY,
-            ONSET_ESTIMATE_DETECTION_LIMIT, dec.onset_temperature)
+            reference["rate"], reference["temperature"])
         return kinetics, "onset-estimate"
     common = dict(order=dec.get("order", 1.0 if dec.model == "nth-order" else 0.0),
                   autocatalytic_order=dec.get("autocatalytic_order", 0.0),
@@ -119,7 +122,60 @@ def _memoised_per_section(section_name: str, size: int = 64):
     return decorate
 
 
+def onset_estimate_reference(case) -> dict:
+    """Reference point of the crude onset-only estimate: (temperature, heat release rate).
+
+    - ``onset_type = "detection-point"``: the onset with the instrument's
+      ``onset_detection_limit``;
+    - ``onset_type = "extrapolated"``: the extrapolated onset converted to the temperature at
+      which the run first released 20 W/kg, by
+      :func:`screen.models.dsc.conservative_detection_point` (first-order model run with the
+      case's energy and ``onset_scan_rate``, lowest over E = 50-300 kJ/mol; derived);
+    - not declared: the onset read as a 20 W/kg detection point, ``declared`` False: the engine
+      then grants no class (fail closed: an extrapolated onset lies tens of kelvin above the
+      detection point).
+
+    Returns
+    -------
+    dict
+        ``temperature`` [K], ``rate`` [W/kg], ``onset_type`` (str or None), ``declared`` (bool),
+        ``text`` (how the point was obtained).
+    """
+    from screen.errors import CaseError, ScreenError
+    from screen.models import dsc
+
+    dec = case.sections["decomposition"]
+    onset = float(dec.onset_temperature)
+    kind = dec.onset_type
+    if kind == "detection-point":
+        limit = float(dec.onset_detection_limit)
+        return {"temperature": onset, "rate": limit, "onset_type": kind, "declared": True,
+                "text": (f"onset {onset - 273.15:.1f} degC read as the detection point, "
+                         f"{limit:g} W/kg (declared)")}
+    if kind == "extrapolated":
+        scan = float(dec.onset_scan_rate)
+        try:
+            temperature, energy = dsc.conservative_detection_point(
+                onset, scan, float(dec.energy), ONSET_ESTIMATE_DETECTION_LIMIT)
+        except ScreenError as exc:
+            raise CaseError(exc.message, "decomposition.onset_temperature", case.path) from None
+        how = ("the onset itself is lower" if energy != energy
+               else f"E = {energy / 1e3:.0f} kJ/mol gives the lowest")
+        return {"temperature": temperature, "rate": ONSET_ESTIMATE_DETECTION_LIMIT,
+                "onset_type": kind, "declared": True,
+                "text": (f"extrapolated onset {onset - 273.15:.1f} degC at {scan * 60:.3g} K/min "
+                         f"converted to the {ONSET_ESTIMATE_DETECTION_LIMIT:g} W/kg detection "
+                         f"point {temperature - 273.15:.1f} degC (first-order model run, lowest "
+                         f"over E = 50-300 kJ/mol, {how}; derived)")}
+    return {"temperature": onset, "rate": ONSET_ESTIMATE_DETECTION_LIMIT, "onset_type": None,
+            "declared": False,
+            "text": (f"onset {onset - 273.15:.1f} degC read as a "
+                     f"{ONSET_ESTIMATE_DETECTION_LIMIT:g} W/kg detection point, but "
+                     f"decomposition.onset_type is not declared")}
+
+
 decomposition_kinetics = _memoised_per_section("decomposition")(decomposition_kinetics)
+onset_estimate_reference = _memoised_per_section("decomposition")(onset_estimate_reference)
 
 
 @functools.lru_cache(maxsize=1024)

@@ -554,8 +554,8 @@ def _model_summary(result):
             ],
         }
         result.warnings.append(
-            "no kinetic data: the case-file section carries the crude worst-case zero-order "
-            "model; replace it by measured kinetics"
+            "no kinetic data: the case-file section is marked basis = \"onset-estimate\" "
+            "(the case engine treats it as a crude estimate); replace it by measured kinetics"
         )
 
 

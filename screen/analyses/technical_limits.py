@@ -159,7 +159,9 @@ def _raise_class(r, new_class, reason, verdict_text, warnings) -> None:
     r["criticality_class_computed"] = int(new_class)
     if r.get("criticality_class") is not None:
         r["criticality_class"] = int(new_class)
-    if r.get("verdict_status") == "cannot-conclude" and new_class >= 4:
+    onset = r.get("onset_estimate") or {}
+    if r.get("verdict_status") == "cannot-conclude" and (
+            new_class >= 5 or (new_class >= 4 and onset.get("declared", True))):
         # A crude estimate may confirm a high class (the engine's rule).
         r["verdict_status"] = "crude-estimate"
         r["criticality_class"] = int(new_class)
@@ -200,7 +202,9 @@ def _vessel_limits(case, result, verdict_text) -> None:
                                         and math.isfinite(limit["low"]) else None)
         entry["mtt_basis"] = limit["basis"]
         entry["criticality_class_computed"] = klass
-        reported = klass if status == "screened" or klass >= 4 else None
+        declared = (r.get("onset_estimate") or {}).get("declared", True)
+        reported = (klass if status == "screened" or klass >= 5 or (klass >= 4 and declared)
+                    else None)
         entry["criticality_class"] = reported
         if limit["closed"]:
             result.warnings.append(f"{vessel.name}: {limit['basis']}"

@@ -750,6 +750,25 @@ def _check_arrhenius_range(sections, path) -> None:
                     f"unit (J/mol or kJ/mol)", f"{section_name}.activation_energy", path)
 
 
+def _check_onset(data: dict, path: str) -> None:
+    """The onset type and the figure it needs go together (issue 18 item 3)."""
+    kind = data.get("onset_type")
+    needs = {"detection-point": "onset_detection_limit", "extrapolated": "onset_scan_rate"}
+    if kind is not None and "onset_temperature" not in data:
+        raise CaseError("onset_type describes onset_temperature; give it as well",
+                        "decomposition.onset_temperature", path)
+    if kind is not None and needs[kind] not in data:
+        example = {"onset_detection_limit": '"20 W/kg"', "onset_scan_rate": '"10 K/min"'}
+        raise CaseError(f"onset_type = \"{kind}\" needs {needs[kind]}, e.g. "
+                        f"{needs[kind]} = {example[needs[kind]]}",
+                        f"decomposition.{needs[kind]}", path)
+    for key, wanted in (("onset_detection_limit", "detection-point"),
+                        ("onset_scan_rate", "extrapolated")):
+        if key in data and kind != wanted:
+            raise CaseError(f"{key} belongs to onset_type = \"{wanted}\"; declare onset_type",
+                            "decomposition.onset_type", path)
+
+
 def _check_decomposition(decomposition: Section, path: str) -> None:
     data = decomposition.as_dict()
     if "energy" not in data:
@@ -758,6 +777,13 @@ def _check_decomposition(decomposition: Section, path: str) -> None:
     model = data.get("model")
     kinetic_keys = ("activation_energy", "reference_rate", "reference_temperature",
                     "pre_exponential_factor")
+    _check_onset(data, path)
+    if data.get("basis") == "onset-estimate":
+        # Written from a single onset: the model keys, if any, are not used (issue 18 item 1).
+        if "onset_temperature" not in data:
+            raise CaseError("basis = \"onset-estimate\" needs onset_temperature",
+                            "decomposition.onset_temperature", path)
+        return
     if model is None:
         if any(k in data for k in kinetic_keys):
             raise CaseError("kinetic data given without model; add model = \"zero-order\", "

@@ -1783,3 +1783,215 @@ def crude_td24_from_onset(onset_temperature, detection_limit=CRUDE_DETECTION_LIM
     ln_q_inf = math.log(detection_limit) + activation_energy / (GAS_CONSTANT * onset_temperature)
     return zero_order_td(ln_q_inf, activation_energy, specific_heat, time_to_maximum_rate,
                          bracket=(max(100.0, onset_temperature - 600.0), onset_temperature + 400.0))
+
+
+def _first_order_scan(log_factor, activation_energy, heating_rate):
+    """Helpers of a first-order reaction in a linear heating run (derived).
+
+    With k(T) = A exp(-E/(R T)) and dT/dt = beta, ln(1 - a) = -(A/beta) T E_2(E/(R T))
+    (the temperature integral int_0^T exp(-E/(R T')) dT' = T E_2(E/(R T)), exact), and the heat
+    flow q = Q k (1 - a) has d ln q / dT = g(T) = E/(R T^2) - k/beta.
+    """
+    from scipy.special import expn
+
+    e_over_r = activation_energy / GAS_CONSTANT
+
+    def log_k(t):
+        return log_factor - e_over_r / t
+
+    def g(t):
+        return e_over_r / t**2 - math.exp(log_k(t)) / heating_rate
+
+    def g_prime(t):
+        return -2.0 * e_over_r / t**3 - math.exp(log_k(t)) / heating_rate * e_over_r / t**2
+
+    def log_remaining(t):
+        return -math.exp(log_factor) / heating_rate * t * float(expn(2, e_over_r / t))
+
+    return log_k, g, g_prime, log_remaining
+
+
+def _scan_peak_and_inflection(log_factor, activation_energy, heating_rate):
+    """(peak, leading inflection) temperatures [K] of a first-order dynamic run (derived:
+    peak where g = 0, i.e. E beta/(R T^2) = k(T), Kissinger's condition; inflection where
+    q'' = q (g^2 + g') = 0 below the peak)."""
+    from scipy.optimize import brentq
+
+    e_over_r = activation_energy / GAS_CONSTANT
+    log_k, g, g_prime, _ = _first_order_scan(log_factor, activation_energy, heating_rate)
+
+    def peak_residual(t):
+        return math.log(e_over_r * heating_rate / t**2) - log_k(t)
+
+    peak = brentq(peak_residual, 20.0, 1e5, xtol=1e-10)
+    low = peak * 0.3
+    inflection = brentq(lambda t: g(t) ** 2 + g_prime(t), low, peak, xtol=1e-10)
+    return peak, inflection
+
+
+def first_order_scan_onset(log_factor, activation_energy, heating_rate):
+    """Extrapolated (tangent) onset of a first-order exotherm in a dynamic DSC run.
+
+    The tangent at the leading inflection point T_i meets the baseline at
+    T_on = T_i - q(T_i)/q'(T_i) = T_i - 1/g(T_i) (see :func:`_first_order_scan`; derived; the
+    onset does not depend on the reaction energy).
+
+    Parameters
+    ----------
+    log_factor : float
+        ln(A / (1/s)). [-]
+    activation_energy : float
+        E. [J/mol]
+    heating_rate : float
+        Scan rate beta. [K/s]
+
+    Returns
+    -------
+    float
+        Extrapolated onset. [K]
+    """
+    _, inflection = _scan_peak_and_inflection(log_factor, activation_energy, heating_rate)
+    _, g, _, _ = _first_order_scan(log_factor, activation_energy, heating_rate)
+    return inflection - 1.0 / g(inflection)
+
+
+def detection_point_from_extrapolated_onset(onset_temperature, heating_rate, energy,
+                                            detection_limit=CRUDE_DETECTION_LIMIT,
+                                            activation_energy=CRUDE_ACTIVATION_ENERGY):
+    """Temperature at which a dynamic DSC run first releases ``detection_limit``, from the
+    extrapolated onset of that run (a conservative conversion for the crude estimate).
+
+    Derived (no published source): the exotherm is taken as a first-order reaction with the
+    given energy and an assumed LOW activation energy (default 50 kJ/mol, the crude estimate's
+    value after Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41, from memory). A low E
+    gives a broad peak whose leading edge starts far below the tangent onset, so the detection
+    point found is lower than that of a real, steeper exotherm with the same onset
+    (conservative; checked against simulated runs in tests/test_onset_conversion.py). Steps:
+    find ln A such that the tangent onset of the model run equals ``onset_temperature``
+    (:func:`first_order_scan_onset`), then solve q(T) = Q k(T) (1 - a(T)) = q_det below the
+    peak (q rises monotonically up to it).
+
+    Parameters
+    ----------
+    onset_temperature : float
+        Extrapolated (tangent) onset of the dynamic run. [K]
+    heating_rate : float
+        Scan rate of that run. [K/s]
+    energy : float
+        Decomposition energy Q per kg of sample. [J/kg]
+    detection_limit : float, optional
+        Heat release rate taken as detectable. [W/kg]
+    activation_energy : float, optional
+        Assumed activation energy (low is conservative). [J/mol]
+
+    Returns
+    -------
+    float
+        Detection-point temperature, below the onset. [K]
+
+    Raises
+    ------
+    ModelDomainError
+        Non-positive inputs, or an exotherm too small ever to reach the detection limit.
+    """
+    from scipy.optimize import brentq
+
+    for value, name in ((onset_temperature, "onset temperature"), (heating_rate, "scan rate"),
+                        (energy, "energy"), (detection_limit, "detection limit"),
+                        (activation_energy, "activation energy")):
+        if not (math.isfinite(value) and value > 0.0):
+            raise ModelDomainError(f"{name} must be a finite positive number, got {value}")
+    e_over_r = activation_energy / GAS_CONSTANT
+    # Bracket ln A: the Kissinger peak condition at the onset and 300 K above bound it widely.
+    def onset_residual(log_factor):
+        return first_order_scan_onset(log_factor, activation_energy, heating_rate) \
+            - onset_temperature
+
+    # The onset falls as ln A grows; start at the Kissinger condition at the onset and widen.
+    guess = math.log(e_over_r * heating_rate / onset_temperature**2) + e_over_r / onset_temperature
+    for width in (2.0, 5.0, 10.0, 20.0):
+        low, high = guess - width, guess + width
+        try:
+            if onset_residual(low) > 0.0 > onset_residual(high):
+                break
+        except ValueError:
+            continue
+    else:
+        raise ModelDomainError(f"no first-order run with E = {activation_energy / 1e3:.0f} kJ/mol "
+                               f"has its onset at {onset_temperature:.6g} K")
+    log_factor = brentq(onset_residual, low, high, xtol=1e-12)
+    log_k, _, _, log_remaining = _first_order_scan(log_factor, activation_energy, heating_rate)
+    peak, _ = _scan_peak_and_inflection(log_factor, activation_energy, heating_rate)
+
+    def log_rate_excess(t):
+        return math.log(energy) + log_k(t) + log_remaining(t) - math.log(detection_limit)
+
+    if log_rate_excess(peak) <= 0.0:
+        raise ModelDomainError(
+            f"an exotherm of {energy / 1e3:.4g} J/g with its onset at {onset_temperature:.6g} K "
+            f"never reaches {detection_limit:g} W/kg in this model: check the energy and the "
+            f"detection limit")
+    bottom = max(onset_temperature - 600.0, 0.25 * onset_temperature)
+    return float(brentq(log_rate_excess, bottom, peak, xtol=1e-9))
+
+
+#: Activation energies scanned by :func:`conservative_detection_point` [J/mol]: 50-300 kJ/mol
+#: in steps of 10 kJ/mol, the usual range of decomposition reactions (common practice, no
+#: source).
+ONSET_CONVERSION_ACTIVATION_ENERGIES = tuple(float(e) for e in np.arange(50e3, 300e3 + 1.0, 10e3))
+
+
+def conservative_detection_point(onset_temperature, heating_rate, energy,
+                                 detection_limit=CRUDE_DETECTION_LIMIT,
+                                 activation_energies=ONSET_CONVERSION_ACTIVATION_ENERGIES):
+    """Lowest detection point compatible with an extrapolated onset, over a range of E.
+
+    :func:`detection_point_from_extrapolated_onset` for each assumed activation energy; the
+    lowest result, and never above the onset itself, is returned (derived, fail closed: the
+    real E is unknown when only an onset exists; a low E does not always give the lowest
+    detection point: at slow scans and small energies a broad low-E peak first reaches the
+    detection limit above the tangent onset). Activation energies at which the model run never
+    reaches the detection limit are skipped.
+
+    Parameters
+    ----------
+    onset_temperature : float
+        Extrapolated (tangent) onset. [K]
+    heating_rate : float
+        Scan rate of the run. [K/s]
+    energy : float
+        Decomposition energy per kg. [J/kg]
+    detection_limit : float, optional
+        Heat release rate taken as detectable. [W/kg]
+    activation_energies : sequence of float, optional
+        Activation energies scanned. [J/mol]
+
+    Returns
+    -------
+    tuple of (float, float)
+        Detection-point temperature [K] and the activation energy that gave it [J/mol]
+        (``nan`` when the onset itself is lower).
+
+    Raises
+    ------
+    ModelDomainError
+        No activation energy of the range gives a run that reaches the detection limit.
+    """
+    best, best_energy = float(onset_temperature), math.nan
+    found = False
+    for activation_energy in activation_energies:
+        try:
+            temperature = detection_point_from_extrapolated_onset(
+                onset_temperature, heating_rate, energy, detection_limit, activation_energy)
+        except ModelDomainError:
+            continue
+        found = True
+        if temperature < best:
+            best, best_energy = temperature, float(activation_energy)
+    if not found:
+        raise ModelDomainError(
+            f"no first-order run with E in {activation_energies[0] / 1e3:.0f}-"
+            f"{activation_energies[-1] / 1e3:.0f} kJ/mol, onset {onset_temperature:.6g} K and "
+            f"{energy / 1e3:.4g} J/g reaches {detection_limit:g} W/kg: check the energy, the scan "
+            f"rate and the detection limit")
+    return best, best_energy

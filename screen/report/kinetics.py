@@ -536,6 +536,20 @@ def decomposition_toml(result):
     lines.append("[decomposition]")
     energy_text = "%.4g kJ/kg" % (result.energy["mean"] / 1e3)
     lines.append(f"energy = {_toml_string(energy_text)}")
+    if result.source == "onset":
+        # A single onset gives no kinetics: the section stays a crude onset estimate in every
+        # path (basis key honoured by the case engine); no model keys that could be read as
+        # measured kinetics (issue 18 item 1).
+        lines.append('basis = "onset-estimate"')
+        onset_text = "%.1f degC" % (result.onset["temperature"] - ZERO_CELSIUS)
+        lines.append(f"onset_temperature = {_toml_string(onset_text)}")
+        lines.append(f"onset_method = {_toml_string(result.onset['method'])}")
+        lines.append("# Declare which onset this is, else the case engine grants no class below 5:")
+        lines.append('# onset_type = "extrapolated" with onset_scan_rate = "10 K/min", or')
+        lines.append('# onset_type = "detection-point" with onset_detection_limit = "20 W/kg".')
+        text = "\n".join(lines) + "\n"
+        tomllib.loads(text)
+        return text
     lines.append(f"model = {_toml_string(ms['name'])}")
     ea_text = "%.4g kJ/mol" % (ms["activation_energy"] / 1e3)
     lines.append(f"activation_energy = {_toml_string(ea_text)}")
