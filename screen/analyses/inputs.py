@@ -135,6 +135,11 @@ def onset_estimate_reference(case) -> dict:
       then grants no class (fail closed: an extrapolated onset lies tens of kelvin above the
       detection point).
 
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        Validated case with ``decomposition.onset_temperature``.
+
     Returns
     -------
     dict
