@@ -13,7 +13,9 @@ It measures
 2. the Monte Carlo: samples per second of the vectorised propagation (every figure: MTSR,
    TD24, TMRad, class, vessel critical point) against a naive loop that calls scipy's
    ``solve_ivp`` once per sample for TMRad at MTSR only;
-3. the portfolio: cases per second of ``screen_portfolio`` on 1 and 2 worker processes.
+3. ``limits`` against ``check`` on the same case, CPU time side by side (three vessels;
+   synthesis kinetics);
+4. the portfolio: cases per second of ``screen_portfolio`` on 1 and 2 worker processes.
 
 Wall-clock times are medians of repeated runs. The machine's load average is printed: on a
 shared machine other processes slow everything down, and parallel speed-up needs idle cores.
@@ -51,6 +53,41 @@ def wall(command, repeat):
             print(f"(failed: {' '.join(command[2:])}: {message})", file=sys.stderr)
             return None
     return statistics.median(times)
+
+
+def cpu(command, repeat):
+    """Median CPU time (user + system of the child process) [s] of a subprocess command."""
+    import resource
+
+    times = []
+    for _ in range(repeat):
+        before = resource.getrusage(resource.RUSAGE_CHILDREN)
+        completed = subprocess.run(command, cwd=ROOT, stdout=subprocess.DEVNULL,
+                                   stderr=subprocess.PIPE, text=True)
+        after = resource.getrusage(resource.RUSAGE_CHILDREN)
+        if completed.returncode != 0:
+            print(f"(failed: {' '.join(command[2:])})", file=sys.stderr)
+            return None
+        times.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+    return statistics.median(times)
+
+
+def limits_rows(repeat, quick=False):
+    """``limits`` (every default limit) against one ``check`` of the same case, CPU time
+    measured side by side: a case with three vessels and no synthesis kinetics, and (not with
+    --quick) a case with synthesis kinetics (a simulation at every screening)."""
+    rows = []
+    cases = [("nitration_semibatch.toml", "3 vessels, no synthesis kinetics")]
+    if not quick:
+        cases.append(("acylation_semibatch_kinetics.toml", "synthesis kinetics"))
+    for name, what in cases:
+        path = os.path.join(ROOT, "cases", name)
+        check = cpu(CLI + ["check", path, "--json"], repeat)
+        limits = cpu(CLI + ["limits", path, "--json"], 1 if "kinetics" in name else repeat)
+        rows.append((f"CPU: check --json ({what})", check, ""))
+        note = "" if None in (check, limits) else f"{limits / check:.2f} x check (CPU)"
+        rows.append((f"CPU: limits --json ({what})", limits, note))
+    return rows
 
 
 def command_line(repeat):
@@ -224,10 +261,10 @@ def main(argv=None):
     print(f"Python {sys.version.split()[0]}, {os.cpu_count()} CPUs, load average before the run "
           f"{load[0]:.2f} / {load[1]:.2f} / {load[2]:.2f}")
     print()
-    print("| what | wall time [s] | comparison |")
+    print("| what | wall time [s] (CPU where marked) | comparison |")
     print("|---|---:|---|")
-    for section in (command_line(repeat), monte_carlo(samples, naive_samples),
-                    portfolio(copies)):
+    for section in (command_line(repeat), limits_rows(repeat, args.quick),
+                    monte_carlo(samples, naive_samples), portfolio(copies)):
         for label, seconds, note in section:
             shown = "failed" if seconds is None else f"{seconds:.3f}"
             print(f"| {label} | {shown} | {note} |")

@@ -309,6 +309,13 @@ def admissible_range(case, section, name, index, base_results) -> tuple[float, f
         if mtt is not None:
             high = min(high, mtt + ZERO_CELSIUS)
             basis.append("at most the MTT")
+    if section == "synthesis_kinetics" and name == "dosing_time":
+        kinetics = case.sections["synthesis_kinetics"]
+        if kinetics.end_time is not None:
+            # The dosing must end strictly before the simulated time ends.
+            span = float(kinetics.end_time) - float(kinetics.get("dosing_start", 0.0))
+            high = min(high, span * (1.0 - 1e-9))
+            basis.append("dosing over before synthesis_kinetics.end_time")
     if section == "vessel" and index is not None:
         vessel = case.vessels[index]
         if name == "coolant_temperature" and vessel.min_coolant_temperature is not None:
