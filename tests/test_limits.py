@@ -362,3 +362,16 @@ def test_relief_pressure_limit_flips_one_thousandth_past_it():
     criterion = L.Criterion("relief_pressure", "R-1")
     assert criterion.ok(evaluate(e["value"] - 1e-3))
     assert not criterion.ok(evaluate(e["value"] + 1e-3))
+
+
+@settings(max_examples=12, deadline=None)
+@given(margin=st.floats(min_value=0.0, max_value=45.0))
+def test_onset_margin_limit_follows_any_margin(margin):
+    """For any margin, the accumulation limit of TD24 - MTSR >= margin is the closed form
+    X_ac = (TD24 - margin - T_p) / (dT_ad / ratio) (Stoessel 1993; TD24 by Townsend & Tou 1980)."""
+    case = make_case(mtt="160 degC")
+    found = run(case, vary=["process.accumulation"], margin=margin)
+    td24 = td24_townsend_tou() - ZERO_CELSIUS
+    rise = Q_SYN_DEFAULT / CP / 0.85
+    e = entry(found, "process.accumulation", "onset_margin")
+    assert e["value"] == pytest.approx((td24 - margin - 80.0) / rise, abs=2e-5)

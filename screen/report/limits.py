@@ -58,9 +58,10 @@ def limit_lines(data: dict, width: int = 78) -> list[str]:
     unrestricted: dict[str, list[str]] = {}
     for entry in entries:
         if entry["status"] == "holds in range":
-            label = entry["criterion"] if not entry.get("vessel") else \
-                f"{entry['criterion']} ({entry['vessel']})"
-            unrestricted.setdefault(entry["key"], []).append(label)
+            label = entry.get("criterion_text") or entry["criterion"]
+            if entry.get("vessel"):
+                label = f"{entry['vessel']}: {label}"
+            unrestricted.setdefault(label, []).append(entry["key"])
             continue
         groups.setdefault((entry["criterion"], entry.get("vessel")), []).append(entry)
     if not groups:
@@ -77,9 +78,9 @@ def limit_lines(data: dict, width: int = 78) -> list[str]:
                                            subsequent_indent="      "))
     if unrestricted:
         lines.append("")
-        lines.append("  No limit within the admissible range:")
-        for key, labels in unrestricted.items():
-            lines.extend(textwrap.wrap(f"{key}: {', '.join(labels)}", width - 4,
+        lines.append("  No limit within the admissible range of:")
+        for label, keys in unrestricted.items():
+            lines.extend(textwrap.wrap(f"{label}: {', '.join(keys)}", width - 4,
                                        initial_indent="    ", subsequent_indent="      "))
     return lines
 
@@ -102,8 +103,7 @@ def format_limits(data: dict, width: int = 78) -> str:
 
     title = data.get("case", {}).get("title") or ""
     head = f"Safe operating limits: {title}"
-    lines = [SHORT_CAUTION if len(SHORT_CAUTION) <= width else SHORT_CAUTION[:width], head,
-             "=" * min(len(head), width)]
+    lines = textwrap.wrap(SHORT_CAUTION, width) + [head, "=" * min(len(head), width)]
     case = data.get("case") or {}
     if case.get("path"):
         lines.append(f"case file  {case['path']}")
@@ -277,7 +277,7 @@ def window_figure(window: dict, vessels_numbered=None, caution: str | None = Non
     y -= 13.0
     drawing.add(Line(left, y + 1.5, left + 12.0, y + 1.5, strokeColor=_hex(INK), strokeWidth=2.6))
     add_text(drawing, left + 16.0, y, f"edge of class <= {target}", size=6.8)
-    entries = [("not recoverable (any vessel)", 1), ("cooling not adequate", -1)]
+    entries = [("not recoverable (any vessel)", 1), ("cooling insufficient", -1)]
     for label, direction in entries:
         y -= 12.0
         _hatch_sample(drawing, left, y - 3.0, direction)
@@ -332,7 +332,7 @@ def _any_failing(per_vessel: dict):
     grids = list(per_vessel.values())
     if not grids:
         return None
-    return [[any(not g[j][i] for g in grids) for i in range(len(grids[0][0]))]
+    return [[any(g[j][i] is False for g in grids) for i in range(len(grids[0][0]))]
             for j in range(len(grids[0]))]
 
 
@@ -420,7 +420,8 @@ def limits_pdf_block(results: dict, window, styles, counter, vessels_numbered=No
             f"inputs changed and the others as in the case. Greys: criticality class (lighter "
             f"is better); heavy line: edge of class {window.get('target_class', 2)} or better; "
             f"hatching: a vessel's decomposition not recoverable (/) or its synthesis cooling "
-            f"not adequate (\\); lines: per-vessel verdict boundaries (Vn = vessel n), one "
+            f"insufficient (\\), not where it cannot be concluded; lines: per-vessel verdict "
+            f"boundaries (Vn = vessel n), one "
             f"line style per criterion; diamond: today's values. Boundaries are resolved to "
             f"the grid spacing only; the limits above are exact to 1e-6 of each range.",
             styles))

@@ -1149,7 +1149,8 @@ def operating_window(case, base_result, key_x: str, key_y: str, target_class: in
     dict
         ``x``, ``y`` (values in the case file's units), ``unit_x``, ``unit_y``, ``classes``
         (rows over y, columns over x; None where the class cannot be concluded or the input is
-        rejected), ``verdicts`` ({criterion label: {vessel: rows of bool}}), ``today`` (x, y),
+        rejected), ``verdicts`` ({criterion name: {vessel: rows of True (met), False (failed)
+        or None (cannot conclude)}}), ``today`` (x, y),
         ``keys``, ``target_class``, ``screenings``.
     """
     import numpy as np
@@ -1180,7 +1181,10 @@ def operating_window(case, base_result, key_x: str, key_y: str, target_class: in
             if "error" not in row:
                 classes[j][i] = row["results"].get("criticality_class")
             for c in criteria:
-                verdicts[c.name][c.vessel][j][i] = c.ok(row)
+                ok = c.ok(row)
+                # None: the screening cannot conclude there (neither met nor failed).
+                verdicts[c.name][c.vessel][j][i] = (True if ok else
+                                                    None if c.undetermined(row) else False)
     return {
         "keys": [items[0].key, items[1].key],
         "x": [_from_si(float(v), items[0]) for v in axes[0]],
