@@ -70,12 +70,15 @@ def limit_lines(data: dict, width: int = 78) -> list[str]:
         lines.append("")
         lines.append("  " + _criterion_heading(members[0], klass)
                      + ("" if members[0]["satisfied_now"] else "  -- NOT MET TODAY"))
+        notes = []
         for entry in members:
             for k, line in enumerate(textwrap.wrap(entry["text"], width - 6)):
                 lines.append(("    - " if k == 0 else "      ") + line)
-            if entry.get("note"):
-                lines.extend(textwrap.wrap(entry["note"], width - 6, initial_indent="      ",
-                                           subsequent_indent="      "))
+            if entry.get("note") and entry["note"] not in notes:
+                notes.append(entry["note"])
+        for note in notes:  # each reason once per criterion
+            lines.extend(textwrap.wrap(f"why: {note}", width - 4, initial_indent="    ",
+                                       subsequent_indent="      "))
     if unrestricted:
         lines.append("")
         lines.append("  No limit within the admissible range of:")

@@ -415,6 +415,8 @@ class Criterion:
             klass = r.get("criticality_class")
             return klass is not None and int(klass) <= self.k
         if self.name == "onset_margin":
+            if r.get("decomposition_basis", "kinetics") != "kinetics":
+                return False  # TD24 from the crude onset estimate: never a demonstrated margin
             value = _governing(r, "onset_margin_governing_K", "onset_margin_K")
             return value is not None and value >= self.margin
         if self.name in ("decomposition_stability", "synthesis_cooling"):
@@ -451,6 +453,8 @@ class Criterion:
         r = row["results"]
         if self.name == "criticality_class" and r.get("criticality_class") is None:
             return "the class cannot be concluded (no decomposition kinetics)"
+        if self.name == "onset_margin" and r.get("decomposition_basis", "kinetics") != "kinetics":
+            return "TD24 rests on the crude onset estimate (no decomposition kinetics)"
         if self.name in ("decomposition_stability", "synthesis_cooling"):
             entry = _vessel_entry(r.get("vessels"), self.vessel)
             if entry is None or vessel_verdict(entry, self.name) == "cannot conclude":
@@ -1007,7 +1011,7 @@ def limit_text(entry: dict) -> str:
     key, unit = entry["key"], entry["unit"]
     today = format_value(entry["current_value"], unit)
     if entry["status"] == "not demonstrated":
-        return f"{key}: not demonstrated in range ({entry['note']})"
+        return f"{key}: not demonstrated in range (today {today})"
     if entry["status"] == "not achievable":
         return f"{key}: no value in range achieves it (today {today})"
     if entry["status"] == "holds in range":
