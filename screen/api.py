@@ -288,7 +288,7 @@ def sweep(case, vary: Mapping, steps: int = 21, overrides=None):
     if not isinstance(vary, Mapping) or not 1 <= len(vary) <= 2:
         raise CaseError("vary takes a mapping of one or two keys, e.g. "
                         "{'process.temperature': ('20 degC', '60 degC')}", "vary")
-    variations = [parse_vary(_vary_spec(key, value, steps), loaded)
+    variations = [parse_vary(_vary_spec(key, value, steps), loaded, option="vary")
                   for key, value in vary.items()]
     rows, flips = run_sweep(loaded, variations)
     return sweep_frame(rows, flips, variations, loaded)

@@ -271,3 +271,11 @@ def test_command_group_loads_no_heavy_module():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          cwd=ROOT, check=True)
     assert out.stdout.strip() == ""
+
+
+def test_sweep_errors_name_vary_not_the_command_line_option():
+    path = os.path.join(CASES, "grignard_semibatch.toml")
+    with pytest.raises(CaseError) as info:
+        screen.sweep(path, vary={"process.no_such_key": ("1", "2")})
+    message = info.value.one_line()
+    assert "no such key" in message and "--vary" not in message and "vary" in message

@@ -43,7 +43,7 @@ class Variation:
     kind: str
 
 
-def parse_vary(spec: str, case: Case) -> Variation:
+def parse_vary(spec: str, case: Case, option: str = "--vary") -> Variation:
     """Parse ``KEY=START:STOP:STEPS`` (e.g. ``vessel.coolant_temperature=0 degC:40 degC:41``).
 
     Parameters
@@ -52,71 +52,74 @@ def parse_vary(spec: str, case: Case) -> Variation:
         ``KEY=START:STOP:STEPS``; START and STOP with their unit, STEPS a count.
     case : Case
         The validated case; the key must name one of its numeric inputs.
+    option : str
+        Names the source in error messages (``--vary`` on the command line, ``vary`` in
+        Python).
     """
     if "=" not in spec:
-        raise CaseError(f"--vary {spec!r}: expected KEY=START:STOP:STEPS", key="--vary")
+        raise CaseError(f"{option} {spec!r}: expected KEY=START:STOP:STEPS", key=option)
     key, rng = (p.strip() for p in spec.split("=", 1))
     parts = [p.strip() for p in rng.split(":")]
     if len(parts) != 3:
-        raise CaseError(f"--vary {spec!r}: expected START:STOP:STEPS, e.g. "
-                        f"'vessel.coolant_temperature=0 degC:40 degC:41'", key="--vary")
-    section, field_name = _split_key(key)
+        raise CaseError(f"{option} {spec!r}: expected START:STOP:STEPS, e.g. "
+                        f"'vessel.coolant_temperature=0 degC:40 degC:41'", key=option)
+    section, field_name = _split_key(key, option)
     declared = SCHEMA[section][field_name]
-    _check_key_in_case(key, section, case)
+    _check_key_in_case(key, section, case, option)
     try:
         steps = int(parts[2])
     except ValueError:
-        raise CaseError(f"--vary {spec!r}: STEPS must be an integer", key="--vary") from None
+        raise CaseError(f"{option} {spec!r}: STEPS must be an integer", key=option) from None
     if not 2 <= steps <= 5000:
-        raise CaseError(f"--vary {spec!r}: STEPS must be 2..5000", key="--vary")
+        raise CaseError(f"{option} {spec!r}: STEPS must be 2..5000", key=option)
     if declared.kind == "number":
         start = parse_dimensionless(parts[0], key).value
         stop = parse_dimensionless(parts[1], key).value
         unit = ""
     elif declared.kind in ("text", "choice", "bool"):
-        raise CaseError(f"--vary {spec!r}: {key} is not numeric", key="--vary")
+        raise CaseError(f"{option} {spec!r}: {key} is not numeric", key=option)
     else:
         start_q = parse_field_quantity(declared, parts[0], key)
         stop_q = parse_field_quantity(declared, parts[1], key)
         if start_q.si_unit != stop_q.si_unit:
-            raise CaseError(f"--vary {spec!r}: START and STOP have different dimensions "
-                            f"({start_q.si_unit} and {stop_q.si_unit})", key="--vary")
+            raise CaseError(f"{option} {spec!r}: START and STOP have different dimensions "
+                            f"({start_q.si_unit} and {stop_q.si_unit})", key=option)
         start, stop, unit = start_q.value, stop_q.value, start_q.si_unit
     return Variation(key, np.linspace(start, stop, steps), unit, rng, declared.kind)
 
 
-def _check_key_in_case(key: str, section: str, case: Case) -> None:
+def _check_key_in_case(key: str, section: str, case: Case, option: str = "--vary") -> None:
     """The varied key must act on the case: its section exists, a vessel number exists."""
     parts = key.split(".")
     if section == "vessel":
         if not case.vessels:
-            raise CaseError(f"--vary {key!r}: the case has no [vessel]; add one before sweeping "
-                            f"a vessel input", key="--vary")
+            raise CaseError(f"{option} {key!r}: the case has no [vessel]; add one before sweeping "
+                            f"a vessel input", key=option)
         if len(parts) == 3:
             try:
                 index = int(parts[1])
             except ValueError:
-                raise CaseError(f"--vary {key!r}: use vessel.KEY (all vessels) or vessel.N.KEY "
-                                f"(N = 1, 2, ... in file order)", key="--vary") from None
+                raise CaseError(f"{option} {key!r}: use vessel.KEY (all vessels) or vessel.N.KEY "
+                                f"(N = 1, 2, ... in file order)", key=option) from None
             if not 1 <= index <= len(case.vessels):
-                raise CaseError(f"--vary {key!r}: vessel number {index} does not exist (the "
-                                f"case has {len(case.vessels)})", key="--vary")
+                raise CaseError(f"{option} {key!r}: vessel number {index} does not exist (the "
+                                f"case has {len(case.vessels)})", key=option)
     elif section not in case.sections:
         # A value in a section the case does not have would change nothing (or half a feature).
-        raise CaseError(f"--vary {key!r}: the case has no [{section}] section; add it with the "
-                        f"keys it needs before sweeping {key}", key="--vary")
+        raise CaseError(f"{option} {key!r}: the case has no [{section}] section; add it with the "
+                        f"keys it needs before sweeping {key}", key=option)
 
 
-def _split_key(key: str):
+def _split_key(key: str, option: str = "--vary"):
     parts = key.split(".")
     if parts[0] == "vessel" and len(parts) in (2, 3):
         name = parts[-1]
     elif len(parts) == 2:
         name = parts[1]
     else:
-        raise CaseError(f"--vary {key!r}: use SECTION.KEY, vessel.KEY or vessel.N.KEY", key="--vary")
+        raise CaseError(f"{option} {key!r}: use SECTION.KEY, vessel.KEY or vessel.N.KEY", key=option)
     if parts[0] not in SCHEMA or name not in SCHEMA[parts[0]]:
-        raise CaseError(f"--vary {key!r}: no such key in the case schema", key="--vary")
+        raise CaseError(f"{option} {key!r}: no such key in the case schema", key=option)
     return parts[0], name
 
 
