@@ -279,3 +279,13 @@ def test_sweep_errors_name_vary_not_the_command_line_option():
         screen.sweep(path, vary={"process.no_such_key": ("1", "2")})
     message = info.value.one_line()
     assert "no such key" in message and "--vary" not in message and "vary" in message
+
+
+def test_repr_of_a_case_without_kinetics_says_no_class_and_crude():
+    """Fail closed on every surface: no class granted, TD24 marked as a crude estimate."""
+    result = screen.screen_case(os.path.join(CASES, "amidation_onset_only.toml"))
+    assert result.results["criticality_class"] is None
+    first = repr(result).splitlines()[0]
+    assert "no criticality class (cannot conclude)" in first
+    assert "crude" in first
+    assert "no criticality class" in result._repr_html_()

@@ -21,7 +21,7 @@ def _number(value, digits: str = ".1f") -> str:
 
 
 def class_text(results: dict) -> str:
-    """"class 3" or "no class (cannot conclude)".
+    """"criticality class 3" or "no criticality class (cannot conclude)".
 
     Parameters
     ----------
@@ -30,9 +30,14 @@ def class_text(results: dict) -> str:
     """
     klass = results.get("criticality_class")
     if klass is None:
-        return "no class (cannot conclude)"
+        return "no criticality class (cannot conclude)"
     status = results.get("verdict_status", "screened")
-    return f"class {klass}" + ("" if status == "screened" else f" ({status})")
+    return f"criticality class {klass}" + ("" if status == "screened" else f" ({status})")
+
+
+def _crude(results: dict) -> str:
+    return (" (crude, from the DSC onset)"
+            if results.get("decomposition_basis") == "onset-estimate" else "")
 
 
 def short_text(data: dict) -> str:
@@ -46,9 +51,9 @@ def short_text(data: dict) -> str:
     from screen.cautions import SHORT_CAUTION
 
     results = data["results"]
-    line = (f"<screening of {data['case']['title']!r}: criticality {class_text(results)}, "
+    line = (f"<screening of {data['case']['title']!r}: {class_text(results)}, "
             f"MTSR {_number(results.get('mtsr_degC'))} degC, "
-            f"TD24 {_number(results.get('td24_degC'))} degC, "
+            f"TD24 {_number(results.get('td24_degC'))} degC{_crude(results)}, "
             f"{len(data.get('warnings') or [])} warnings>")
     return f"{line}\n{SHORT_CAUTION}"
 
@@ -93,7 +98,7 @@ def html(data: dict) -> str:
 
     results = data["results"]
     parts = ['<div class="runaway-screen-result">',
-             f"<p><b>{escape(str(data['case']['title']))}</b> — criticality "
+             f"<p><b>{escape(str(data['case']['title']))}</b> — "
              f"{escape(class_text(results))}</p>",
              f"<p>{escape(str(results.get('verdict', '')))}</p>",
              "<table><thead><tr><th>Key figure</th><th>Value</th><th>Unit</th></tr></thead>"
@@ -102,6 +107,8 @@ def html(data: dict) -> str:
         if key in results:
             value = results[key]
             shown = _number(value, digits) if digits else ("n/a" if value is None else value)
+            if key in ("td24_degC", "td8_degC", "tmrad_at_mtsr_h") and _crude(results):
+                shown = f"{shown}{_crude(results)}"
             parts.append(f"<tr><td>{label}</td><td style='text-align:right'>"
                          f"{escape(str(shown))}</td><td>{unit}</td></tr>")
     parts.append("</tbody></table>")
