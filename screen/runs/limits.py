@@ -63,9 +63,7 @@ DEFAULT_ONSET_MARGIN = 50.0
 RELATIVE_TOLERANCE = 1e-6
 #: Interior grid points between today's value and each end of the range.
 GRID_POINTS_PER_SIDE = 2
-#: A screening costing more than this [s CPU] (a simulation at each point) gets no interior
-#: grid points: both ends and today's value only (design).
-EXPENSIVE_SCREENING = 0.15
+
 
 CRITERION_TEXT = {
     "criticality_class": "class at most {k}",
@@ -659,7 +657,6 @@ class _Evaluator:
             self.key = f"vessel.{item.name}"
         self.rows: dict[float, dict] = {}
         self.count = 0
-        self.seconds = 0.0  # CPU time of the most expensive screening so far [s]
 
     def __call__(self, value: float) -> dict:
         value = float(value)
@@ -672,16 +669,11 @@ class _Evaluator:
     def _evaluate(self, value: float) -> dict:
         from screen.runs.screening import screen_case
 
-        import time
-
         self.count += 1
-        start = time.process_time()
         try:
             result = screen_case(self._case_with_value(self.case, self.key, value), curves=False)
         except ScreenError as exc:
             return {"error": exc.message}
-        finally:
-            self.seconds = max(self.seconds, time.process_time() - start)
         return {"results": result.results}
 
 
@@ -723,6 +715,23 @@ class _Secant:
             half = 0.5 * self.tolerance
             return min(max(x, lo + half), hi - half) if hi - lo > 2 * half else None
         return None
+
+
+def runs_simulation(case) -> bool:
+    """True when every screening of the case runs the cooling-failure simulation (it has
+    ``[synthesis_kinetics]``): such inputs get the sparse grid (both ends and today's value).
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        The validated case.
+
+    Returns
+    -------
+    bool
+        Whether the case has synthesis kinetics.
+    """
+    return case.sections.get("synthesis_kinetics") is not None
 
 
 def _grid(item: LimitInput, per_side: int = GRID_POINTS_PER_SIDE) -> list[float]:
@@ -841,10 +850,10 @@ def limits_of_input(case, item: LimitInput, criteria: list[Criterion]) -> tuple[
         names = ({v.name for v in case.vessels} if item.vessel_index is None
                  else {case.vessels[item.vessel_index].name})
         relevant = [c for c in criteria if c.vessel in names]
-    evaluate(item.current)
     # Expensive screenings (a simulation at every point): both ends and today only; the
-    # verdicts are then taken as monotone between them.
-    sparse = evaluate.seconds > EXPENSIVE_SCREENING
+    # verdicts are then taken as monotone between them. Decided from the case, not from a
+    # timing, so that the result does not depend on the machine.
+    sparse = runs_simulation(case)
     for x in _grid(item, 0 if sparse else GRID_POINTS_PER_SIDE):
         evaluate(x)
     out = []
@@ -1081,6 +1090,8 @@ def add_limits(case, result, vary=None, target_class: int = 2,
 
 #: Grid points per axis of the operating window (n x n screenings).
 WINDOW_POINTS = 17
+#: Grid points per axis when a screening is expensive (a simulation at every point).
+WINDOW_POINTS_EXPENSIVE = 9
 
 
 def check_window_keys(case, keys) -> None:
@@ -1131,7 +1142,7 @@ def _to_si(value, item: LimitInput) -> float:
 
 
 def operating_window(case, base_result, key_x: str, key_y: str, target_class: int = 2,
-                     points: int = WINDOW_POINTS) -> dict:
+                     points: int | None = None) -> dict:
     """Screen the case on a grid over two inputs: class and per-vessel verdicts at each point.
 
     Parameters
@@ -1145,8 +1156,9 @@ def operating_window(case, base_result, key_x: str, key_y: str, target_class: in
         The two controllable inputs (as for ``--vary``).
     target_class : int
         Class drawn as the acceptable region's edge (1..5).
-    points : int
-        Grid points per axis.
+    points : int, optional
+        Grid points per axis; default :data:`WINDOW_POINTS`, or :data:`WINDOW_POINTS_EXPENSIVE`
+        when every screening runs the cooling-failure simulation.
 
     Returns
     -------
@@ -1166,8 +1178,10 @@ def operating_window(case, base_result, key_x: str, key_y: str, target_class: in
     check_window_keys(case, (key_x, key_y))
     items = resolve_inputs(case, [key_x, key_y], r)
     entries = r.get("limits") or []
-    axes = [np.linspace(*_window_axis(item, entries), points) for item in items]
     variant = screening_variant(case)
+    if points is None:
+        points = WINDOW_POINTS_EXPENSIVE if runs_simulation(case) else WINDOW_POINTS
+    axes = [np.linspace(*_window_axis(item, entries), points) for item in items]
     criteria = [c for c in criteria_for(case, r, int(target_class), DEFAULT_ONSET_MARGIN)
                 if c.vessel is not None]
     classes = [[None] * points for _ in range(points)]
