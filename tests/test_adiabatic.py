@@ -153,6 +153,20 @@ def test_pressure_and_permanent_gas(first_order):
     assert d["energy_J_per_g"] is None  # no sample c'p given
 
 
+def test_permanent_gas_amount(first_order):
+    # Simulation: 0.2 mol of permanent gas per kg of sample at full conversion, 5 mL free volume.
+    path, truth = first_order
+    result = CliRunner().invoke(main, ["kinetics", "--adiabatic", str(path), "--phi", "1.6",
+                                       "--sample-mass", "4 g", "--cell-free-volume", "5 mL",
+                                       "--json"])
+    assert result.exit_code == 0, result.output
+    gas = json.loads(result.output)["noncondensable_gas_mol_per_kg"]
+    assert gas == pytest.approx(0.2 * float(truth["conversion"][-1]), rel=0.02)
+    result = CliRunner().invoke(main, ["kinetics", "--adiabatic", str(path), "--phi", "1.6",
+                                       "--cell-free-volume", "5 mL"])
+    assert result.exit_code == 2 and "--cell-free-volume" in result.output
+
+
 def test_phi_from_masses_equals_given_phi(first_order):
     path, truth = first_order
     # 4 g sample at 2.0 J/(g K) in a 9.6 g cell at 0.5 J/(g K): phi = 1 + 4.8/8 = 1.6

@@ -17,6 +17,8 @@ import tomllib
 import numpy as np
 import pytest
 from click.testing import CliRunner
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from calorimetry_simulation import semibatch_trace, write_csv
 from screen.analyses.heat_flow import analyse_heat_flow
@@ -81,6 +83,23 @@ def test_dosing_heat_flow_integrates_to_feed_sensible_heat():
     dosed = np.clip((t - 600) / 2400, 0, 1) * 0.5
     q = hf.dosing_heat_flow(t, dosed, np.full(t.size, 323.15), 293.15, 1700.0)
     assert hf.cumulative_integral(t, q)[-1] == pytest.approx(25.5e3, rel=2e-3)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.floats(0.0, 1.0), min_size=3, max_size=30),
+       st.floats(1e3, 1e7), st.floats(0.1, 1e4), st.floats(500.0, 5000.0))
+def test_mtsr_invariants(fractions, total, mass, cp):
+    # Invariants of the published definitions (Gygax 1988; Stoessel 1993): MTSR(t) >= T_r,
+    # equal where nothing is accumulated, and rising with the accumulation.
+    x = np.array(fractions)
+    t_r = np.full(x.size, 330.0)
+    mtsr = hf.mtsr_course(t_r, x, total, np.full(x.size, mass), cp)
+    assert np.all(mtsr >= t_r)
+    assert np.all(mtsr[x == 0.0] == 330.0)
+    order = np.argsort(x, kind="stable")
+    assert np.all(np.diff(mtsr[order]) >= -1e-9)
+    dosed = np.maximum.accumulate(x)
+    assert np.all(hf.thermal_accumulation(dosed, np.minimum(x, dosed)) >= 0.0)
 
 
 def test_dosing_interval_and_no_dosing():

@@ -71,6 +71,9 @@ class AdiabaticResult:
     max_pressure: float | None = None
     noncondensable_pressure: float | None = None
     noncondensable_basis: str | None = None
+    noncondensable_gas: float | None = None
+    sample_mass: float | None = None
+    free_volume: float | None = None
     notes: list = field(default_factory=list)
     warnings: list = field(default_factory=list)
 
@@ -82,7 +85,7 @@ class AdiabaticResult:
 
 
 def analyse_adiabatic(path, phi=None, sample_mass=None, specific_heat=None, cell_mass=None,
-                      cell_specific_heat=None, threshold=None, order=None):
+                      cell_specific_heat=None, threshold=None, order=None, free_volume=None):
     """Analyse an adiabatic (heat-wait-search) run.
 
     Parameters
@@ -101,6 +104,9 @@ def analyse_adiabatic(path, phi=None, sample_mass=None, specific_heat=None, cell
         Self-heat rate that marks the exotherm. [K/s] Default 0.02 K/min (common practice).
     order : float, optional
         Impose a reaction order instead of choosing it by fit quality. [-]
+    free_volume : float, optional
+        Gas volume of the closed cell; with ``sample_mass`` it turns the permanent-gas pressure
+        into mol per kg of sample. [m^3]
 
     Returns
     -------
@@ -116,12 +122,15 @@ def analyse_adiabatic(path, phi=None, sample_mass=None, specific_heat=None, cell
     from screen.models.decomposition import DecompositionKinetics, tmrad
 
     threshold = ad.DEFAULT_THRESHOLD if threshold is None else threshold
-    cell_given = [v is not None for v in (sample_mass, cell_mass, cell_specific_heat)]
+    if free_volume is not None and sample_mass is None:
+        raise CaseError("the permanent gas per kg needs the sample mass: give --sample-mass "
+                        "with --cell-free-volume", key="--cell-free-volume")
+    cell_given = [v is not None for v in (cell_mass, cell_specific_heat)]
     if phi is not None and any(cell_given):
         raise CaseError("give either --phi or the masses and heat capacities of sample and cell, "
                         "not both", key="--phi")
     if phi is None:
-        if not all(cell_given) or specific_heat is None:
+        if not all(cell_given) or specific_heat is None or sample_mass is None:
             raise CaseError("an adiabatic run needs its thermal inertia: --phi 1.6, or "
                             "--sample-mass, --specific-heat (of the sample), --cell-mass and "
                             "--cell-specific-heat", key="--phi")
@@ -216,7 +225,7 @@ def analyse_adiabatic(path, phi=None, sample_mass=None, specific_heat=None, cell
         tmrad_at_measured_onset_phi_one=ad.time_to_maximum_rate_phi_one(tmr_measured, phi),
         specific_heat=specific_heat, fit_temperature=grid, fit_rate=grid_rate,
         corrected_temperature=corrected_t, corrected_rate=corrected_r, notes=notes,
-        warnings=warnings)
+        warnings=warnings, sample_mass=sample_mass, free_volume=free_volume)
     if trace.pressure is not None:
         _pressure(result, i0)
     return result
@@ -243,6 +252,12 @@ def _pressure(result, i0):
     order = np.argsort(before_t, kind="stable")
     p_ref = float(np.interp(t_end, before_t[order], before_p[order]))
     result.noncondensable_pressure = p_end - p_ref
+    if result.free_volume is not None and result.sample_mass is not None:
+        from screen.constants import GAS_CONSTANT
+
+        # ideal gas in the free volume at the end temperature (design)
+        result.noncondensable_gas = (result.noncondensable_pressure * result.free_volume
+                                     / (GAS_CONSTANT * t_end) / result.sample_mass)
     result.noncondensable_basis = (
         f"pressure after cool-down at {t_end - ZERO_CELSIUS:.1f} degC minus the pressure "
         "recorded at the same temperature before the exotherm (permanent gas; design)")

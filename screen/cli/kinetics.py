@@ -61,11 +61,14 @@ from screen.report.kinetics import (
               help="c'p of the adiabatic test cell.")
 @click.option("--rate-threshold", default="0.02 K/min", show_default=True,
               help="Self-heat rate that marks the exotherm of an adiabatic run.")
+@click.option("--cell-free-volume", metavar="'5 mL'",
+              help="Gas volume of the adiabatic cell: permanent gas in mol per kg of sample "
+                   "(needs --sample-mass).")
 @click.pass_context
 def kinetics_command(ctx, thermograms, peaks, sample_mass, heating_rate, exo_up, baseline,
                      integration_range, model, onset, energy, detection_limit, specific_heat,
                      confidence, as_json, output, force, png_dir, adiabatic, phi, cell_mass,
-                     cell_specific_heat, rate_threshold):
+                     cell_specific_heat, rate_threshold, cell_free_volume):
     """Decomposition kinetics from DSC runs: Kissinger (ASTM E698), Friedman and
     Flynn-Wall-Ozawa activation energies, decomposition energy, a fitted model for
     extrapolation and TD24 estimates.
@@ -135,7 +138,7 @@ def kinetics_command(ctx, thermograms, peaks, sample_mass, heating_rate, exo_up,
                  for name in ctx.params}
         handle_errors(_run_adiabatic)(ctx.params, given)
         return
-    for name in ("phi", "cell_mass", "cell_specific_heat", "rate_threshold"):
+    for name in ("phi", "cell_mass", "cell_specific_heat", "rate_threshold", "cell_free_volume"):
         if ctx.get_parameter_source(name).name != "DEFAULT":
             handle_errors(_reject)(f"--{name.replace('_', '-')}",
                                    "applies to an adiabatic run only; give --adiabatic RUN.csv")
@@ -203,12 +206,15 @@ def _run_adiabatic(params, given):
                                  "--cell-specific-heat")
                if params["cell_specific_heat"] is not None else None)
     threshold_value = _rate(params["rate_threshold"])
+    free_volume = (positive_quantity(params["cell_free_volume"], "volume", "--cell-free-volume")
+                   if params["cell_free_volume"] is not None else None)
     output, force = params["output"], params["force"]
     if output:
         check_writable(output, force)
     result = analyse_adiabatic(params["adiabatic"], phi=params["phi"], sample_mass=sample_mass,
                                specific_heat=cp, cell_mass=cell_mass,
-                               cell_specific_heat=cell_cp, threshold=threshold_value)
+                               cell_specific_heat=cell_cp, threshold=threshold_value,
+                               free_volume=free_volume)
     deliver(result, to_dict=present.result_to_dict, summary=present.format_summary,
             fragment=present.decomposition_toml, write_pngs=present.write_pngs, output=output,
             force=force, png_dir=params["png_dir"], as_json=params["as_json"],

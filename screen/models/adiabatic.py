@@ -46,6 +46,7 @@ import numpy as np
 
 from screen.constants import GAS_CONSTANT
 from screen.errors import ModelDomainError
+from screen.models.domain import require_positive
 
 #: Common-practice detection threshold of the heat-wait-search mode [K/s]: 0.02 K/min
 #: (common practice, no source).
@@ -61,13 +62,6 @@ ORDER_PREFERENCE = 1.05
 
 #: Orders searched by the fit [-].
 ORDER_GRID = np.round(np.arange(0.0, 3.0001, 0.01), 2)
-
-
-def _positive(value, name, unit):
-    value = float(value)
-    if not (value > 0.0 and math.isfinite(value)):
-        raise ModelDomainError(f"{name} must be finite and > 0 {unit}, got {value!r}")
-    return value
 
 
 def phi_factor(sample_mass, sample_specific_heat, cell_mass, cell_specific_heat):
@@ -96,12 +90,10 @@ def phi_factor(sample_mass, sample_specific_heat, cell_mass, cell_specific_heat)
     >>> round(phi_factor(5e-3, 2000.0, 10e-3, 520.0), 4)
     1.52
     """
-    ms = _positive(sample_mass, "sample_mass", "kg")
-    cs = _positive(sample_specific_heat, "sample_specific_heat", "J/(kg K)")
-    mc = float(cell_mass)
-    cc = _positive(cell_specific_heat, "cell_specific_heat", "J/(kg K)")
-    if not (mc >= 0.0 and math.isfinite(mc)):
-        raise ModelDomainError(f"cell_mass must be finite and >= 0 kg, got {mc!r}")
+    ms = require_positive(sample_mass, "sample_mass", "kg")
+    cs = require_positive(sample_specific_heat, "sample_specific_heat", "J/(kg K)")
+    mc = require_positive(cell_mass, "cell_mass", "kg", allow_zero=True)
+    cc = require_positive(cell_specific_heat, "cell_specific_heat", "J/(kg K)")
     return 1.0 + mc * cc / (ms * cs)
 
 
@@ -163,8 +155,8 @@ def corrected_onset_temperature(measured_onset, phi, activation_energy):
     >>> round(corrected_onset_temperature(400.0, 2.0, 100e3), 2)
     390.99
     """
-    t0 = _positive(measured_onset, "measured_onset", "K")
-    e = _positive(activation_energy, "activation_energy", "J/mol")
+    t0 = require_positive(measured_onset, "measured_onset", "K")
+    e = require_positive(activation_energy, "activation_energy", "J/mol")
     return 1.0 / (1.0 / t0 + GAS_CONSTANT * math.log(_phi(phi)) / e)
 
 
@@ -213,7 +205,7 @@ def corrected_self_heat_rate(measured_rate, measured_temperature, corrected_temp
     float or array
         [K/s]
     """
-    e = _positive(activation_energy, "activation_energy", "J/mol")
+    e = require_positive(activation_energy, "activation_energy", "J/mol")
     tm = np.asarray(measured_temperature, dtype=float)
     tc = np.asarray(corrected_temperature_, dtype=float)
     return _phi(phi) * np.asarray(measured_rate, dtype=float) * np.exp(
@@ -333,7 +325,7 @@ def find_exotherm(temperature, rate, threshold=DEFAULT_THRESHOLD, rebound=1.5,
     """
     temp = np.asarray(temperature, dtype=float)
     r = np.asarray(rate, dtype=float)
-    threshold = _positive(threshold, "threshold", "K/s")
+    threshold = require_positive(threshold, "threshold", "K/s")
     i = int(np.argmax(temp))
     t_max_index = i
     # the slow end of an exotherm hovers around the threshold: start where the rate is clearly
@@ -402,7 +394,7 @@ def pseudo_rate_constant(rate, temperature, onset_temperature, total_rise, order
     numpy.ndarray
         k*, the rate constant of da/dt = k* (1 - a)^n. [1/s]
     """
-    rise = _positive(total_rise, "total_rise", "K")
+    rise = require_positive(total_rise, "total_rise", "K")
     a = initial_conversion + (np.asarray(temperature, dtype=float) - onset_temperature) / rise
     return np.asarray(rate, dtype=float) / (rise * np.clip(1.0 - a, 1e-12, None) ** order)
 

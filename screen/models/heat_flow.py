@@ -29,6 +29,7 @@ from __future__ import annotations
 import numpy as np
 
 from screen.errors import ModelDomainError
+from screen.models.domain import require_positive
 
 #: Baseline constructions offered by :func:`baseline`.
 BASELINES = ("linear", "dosing", "conversion")
@@ -41,13 +42,6 @@ def _array(values, name, unit):
     if not np.all(np.isfinite(array)):
         raise ModelDomainError(f"{name} contains a non-finite value [{unit}]")
     return array
-
-
-def _positive(value, name, unit):
-    value = float(value)
-    if not (value > 0.0 and np.isfinite(value)):
-        raise ModelDomainError(f"{name} must be finite and > 0 {unit}, got {value!r}")
-    return value
 
 
 def cumulative_integral(time, power):
@@ -154,8 +148,8 @@ def dosing_heat_flow(time, dosed_mass, reactor_temperature, feed_temperature,
     t = _array(time, "time", "s")
     m = _array(dosed_mass, "dosed_mass", "kg")
     temperature = _array(reactor_temperature, "reactor_temperature", "K")
-    cp = _positive(feed_specific_heat, "feed_specific_heat", "J/(kg K)")
-    feed = _positive(feed_temperature, "feed_temperature", "K")
+    cp = require_positive(feed_specific_heat, "feed_specific_heat", "J/(kg K)")
+    feed = require_positive(feed_temperature, "feed_temperature", "K")
     return np.gradient(m, t) * cp * (temperature - feed)
 
 
@@ -180,7 +174,7 @@ def sensible_heat_flow(time, mass, reactor_temperature, specific_heat):
     """
     t = _array(time, "time", "s")
     temperature = _array(reactor_temperature, "reactor_temperature", "K")
-    cp = _positive(specific_heat, "specific_heat", "J/(kg K)")
+    cp = require_positive(specific_heat, "specific_heat", "J/(kg K)")
     return np.asarray(mass, dtype=float) * cp * np.gradient(temperature, t)
 
 
@@ -199,7 +193,7 @@ def thermal_conversion(cumulative_heat, total_heat):
     numpy.ndarray
         Thermal conversion. [-]
     """
-    total = _positive(total_heat, "total_heat", "J")
+    total = require_positive(total_heat, "total_heat", "J")
     return np.asarray(cumulative_heat, dtype=float) / total
 
 
@@ -249,8 +243,8 @@ def mtsr_course(reactor_temperature, accumulation, total_heat, mass, specific_he
     >>> float(mtsr_course([323.15], [0.3], 300e3, [1.5], 2000.0)[0])
     353.15
     """
-    total = _positive(total_heat, "total_heat", "J")
-    cp = _positive(specific_heat, "specific_heat", "J/(kg K)")
+    total = require_positive(total_heat, "total_heat", "J")
+    cp = require_positive(specific_heat, "specific_heat", "J/(kg K)")
     x = np.clip(np.asarray(accumulation, dtype=float), 0.0, None)
     return np.asarray(reactor_temperature, dtype=float) + x * total / (
         np.asarray(mass, dtype=float) * cp)

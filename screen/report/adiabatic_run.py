@@ -69,6 +69,7 @@ def result_to_dict(result):
         "max_pressure_bar": _f(r.max_pressure, 1e5),
         "noncondensable_pressure_bar": _f(r.noncondensable_pressure, 1e5),
         "noncondensable_basis": r.noncondensable_basis,
+        "noncondensable_gas_mol_per_kg": _f(r.noncondensable_gas),
         "curves": {
             "temperature_degC": [round(float(v), 3) for v in r.fit_temperature - ZERO_CELSIUS],
             "self_heat_rate_K_per_min": [float("%.5g" % v) for v in r.fit_rate * 60],
@@ -133,6 +134,9 @@ def format_summary(result):
         if d["noncondensable_pressure_bar"] is not None:
             lines.append(f"  permanent gas            {d['noncondensable_pressure_bar']:.3g} bar "
                          f"({d['noncondensable_basis']})")
+            if d["noncondensable_gas_mol_per_kg"] is not None:
+                lines.append(f"                           {d['noncondensable_gas_mol_per_kg']:.3g} "
+                             "mol per kg of sample (ideal gas in the free volume)")
         else:
             lines.append(f"  permanent gas            {d['noncondensable_basis']}")
     for note in d["notes"][:-1] if d["notes"] and d["notes"][-1] == d["order_reason"] else d["notes"]:
@@ -192,6 +196,9 @@ def decomposition_toml(result):
     lines.append(f"onset_method = {_toml_string(f'adiabatic heat-wait-search run {name}, threshold {r.threshold * 60:g} K/min, measured {r.onset - ZERO_CELSIUS:.1f} degC, phi-corrected (Fisher et al. 1992)')}")
     lines.append(f"lowest_measured_temperature = {_toml_string('%.1f degC' % (r.onset - ZERO_CELSIUS))}")
     lines.append(f"source = {_toml_string(f'{name} (sha256 {r.sha256[:16]}...)')}")
+    if r.noncondensable_gas is not None:
+        lines.append(f"# Permanent gas after cool-down: for [solvent] gas_yield = "
+                     f"\"{r.noncondensable_gas:.3g} mol/kg\" (ideal gas in the cell's free volume).")
     text = "\n".join(lines) + "\n"
     tomllib.loads(text)
     return text
