@@ -79,6 +79,10 @@ def kinetics_command(ctx, thermograms, peaks, sample_mass, heating_rate, exo_up,
       runaway-screen kinetics run_2K.csv run_4K.csv run_8K.csv --sample-mass '2.1 mg'
       runaway-screen kinetics run_*.csv --json -o decomposition.toml --png-dir figures
       runaway-screen kinetics --onset '185 degC' --energy '650 J/g'
+      runaway-screen kinetics --adiabatic run.csv --phi 1.75 --specific-heat '1.9 J/(g K)'
+
+    With --adiabatic RUN.csv: an adiabatic heat-wait-search run instead, corrected for the
+    thermal inertia phi (Townsend & Tou 1980; onset after Fisher et al. 1992).
 
     \f
 
@@ -130,6 +134,8 @@ def kinetics_command(ctx, thermograms, peaks, sample_mass, heating_rate, exo_up,
         ``--cell-specific-heat``: c'p of the test cell with unit.
     rate_threshold : str
         ``--rate-threshold``: self-heat rate with unit that marks the exotherm.
+    cell_free_volume : str or None
+        ``--cell-free-volume``: gas volume of the adiabatic cell with unit.
     """
     from screen.cli.common import handle_errors
 
