@@ -220,7 +220,9 @@ def test_sweep_csv_is_written_with_force(tmp_path):
                                        "process.temperature=50 degC:60 degC:3", "--csv",
                                        str(target), "--force"])
     assert result.exit_code == 0, result.output
-    assert target.read_text(encoding="utf-8").count("\n") == 4  # header and three rows
+    text = target.read_text(encoding="utf-8")
+    assert text.startswith("# ")  # the cautions as a comment line
+    assert text.count("\n") == 5  # cautions, header and three rows
     assert [p.name for p in tmp_path.iterdir()] == ["sweep.csv"]  # no temporary file left
 
 

@@ -138,7 +138,8 @@ def test_cli_exit_status_with_and_without_allow_errors(portfolio, tmp_path):
                                    str(csv_path)])
     assert failing.exit_code == 1, failing.output
     assert "broken.toml" in failing.output and "TOML syntax error" in failing.output
-    table = pd.read_csv(csv_path)
+    assert csv_path.read_text().startswith("# Screening aid only")  # cautions, a comment line
+    table = pd.read_csv(csv_path, comment="#")
     assert len(table) == 1 + 1 + 3 + 1  # esterification, grignard, nitration (3 vessels), broken
     allowed = runner.invoke(main, ["batch", str(portfolio), "--workers", "1", "--allow-errors",
                                    "--json"])

@@ -92,7 +92,7 @@ def test_one_python_figure_per_pdf_figure(name, samples, tmp_path):
     titles = _pdf_figure_titles(result, tmp_path)
     names = result.figure_names()
     assert len(names) == len(titles)
-    first_words = {"criticality": "Criticality", "tmrad": "Time", "course": "Temperature",
+    first_words = {"criticality": "Criticality", "tmrad": "Time", "course": "Unmitigated",
                    "semenov": "Semenov", "simulation": "Temperature", "sensitivity": "Sensitivity"}
     for figure_name, (_, word) in zip(names, titles, strict=True):
         assert first_words[figure_name.split(":")[0]] == word

@@ -377,7 +377,7 @@ def test_cli_check_json_and_text_on_the_example_case():
     assert scenarios["rows"][0]["barrier_verdict"] == barrier["verdict"]
     assert "barrier" in data["methods"] and "scenarios" in data["methods"]
 
-    text = runner.invoke(main, ["check", str(EXAMPLE)])
+    text = runner.invoke(main, ["check", str(EXAMPLE), "--detail"])
     assert text.exit_code == 0
     assert "Evaporative-cooling barrier" in text.output
     assert "Deviation scenarios" in text.output

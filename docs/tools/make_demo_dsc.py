@@ -77,19 +77,18 @@ def main():
                      "# Material: HF-417 nitration residue (invented), gold-plated high-pressure crucible",
                      f"# sample_mass = {mass_mg} mg", f"# heating_rate = {beta} K/min",
                      "# exotherm = up",
-                     "Time (min),Temperature (°C),Heat flow (mW)"]
+                     "time (min),temperature (°C),heat flow (mW)"]
             lines += [f"{t / 60:.4f},{c - 273.15:.3f},{h:.5f}" for t, c, h in zip(time, temp, mw)]
             write(OUT / "hf417_residue_02Kmin.csv", lines)
         elif beta == 4:
             # semicolon separated, decimal comma, mW/mg, exo down, free-text preamble
             wg = -signal / 1e3
             lines = [f"# {HEADER}",
-                     "Instrument;DSC-H2 (invented)",
                      "Material;HF-417 nitration residue (invented)",
                      f"Sample mass;{str(mass_mg).replace('.', ',')};mg",
                      f"Heating rate;{beta};K/min",
                      "",
-                     "t/s;Ts/°C;DSC/(mW/mg) exo down"]
+                     "time (s);temperature (°C);heat flow (mW/mg) exo down"]
             lines += [f"{t:.2f};{c - 273.15:.3f};{h:.6f}".replace(".", ",")
                       for t, c, h in zip(time, temp, wg)]
             write(OUT / "hf417_residue_04Kmin.csv", lines)
@@ -100,7 +99,7 @@ def main():
             lines = [f"# {HEADER}",
                      "# Material: HF-417 nitration residue (invented); small melting endotherm near 85 degC",
                      f"# heating_rate = {beta} K/min",
-                     "Temperature [°C]\tHeat Flow [W/g] exo up"]
+                     "temperature (°C)\theat flow (W/g) exo up"]
             lines += [f"{c - 273.15:.3f}\t{h:.6f}" for c, h in zip(temp, wg)]
             write(OUT / "hf417_residue_08Kmin.csv", lines)
         else:
@@ -108,7 +107,7 @@ def main():
             mw = signal * mass_mg * 1e-6 * 1e3
             lines = [f"# {HEADER}", "# Material: HF-417 nitration residue (invented)",
                      f"# sample_mass = {mass_mg} mg",
-                     "Time [s],Sample Temperature [K],Heat Flow [mW] Exo Up"]
+                     "time (s),temperature (K),heat flow (mW) exo up"]
             lines += [f"{t:.2f},{c:.3f},{h:.5f}" for t, c, h in zip(time, temp, mw)]
             write(OUT / "hf417_residue_16Kmin.csv", lines)
     lines = [f"# {HEADER}", "# Material: HF-417 nitration residue (invented); peak maxima of the four runs",
@@ -125,7 +124,7 @@ def main():
         lines = [f"# {HEADER}",
                  "# Material: HF-233 distillation bottoms (invented), autocatalytic decomposition",
                  f"# sample_mass = {mass_mg} mg", f"# heating_rate = {beta} K/min",
-                 "Time (min),Temperature (°C),Heat flow (mW)"]
+                 "time (min),temperature (°C),heat flow (mW)"]
         lines += [f"{t / 60:.4f},{c - 273.15:.3f},{h:.5f}" for t, c, h in zip(time, temp, mw)]
         write(OUT / f"hf233_bottoms_{beta:02d}Kmin.csv", lines)
 

@@ -47,9 +47,10 @@ METHOD_TEXT = (
     "Evaporative cooling at the MTT (boiling at a fixed pressure): vapour load = heat release "
     "rate / latent heat (energy balance); condenser duty needed = heat release rate against a "
     "rated duty or U A (T_b - T_coolant); vapour-line flooding = lower of Wallis (1969) and "
-    "Kutateladze (Pushkina & Sorokin 1969) limits, constants from memory; level swell by the "
-    "DIERS drift-flux model (from memory); solvent evaporated = (accumulated heat - sensible "
-    "heat to the MTT) / latent heat, no condensate returned; 20 % margin to a limit = doubtful "
+    "Kutateladze (Pushkina & Sorokin 1969) limits (verify the constants against the sources); "
+    "level swell by the DIERS drift-flux model (verify against the source); solvent evaporated "
+    "= (accumulated heat - sensible heat to the MTT) / latent heat, no condensate returned; "
+    "20 % margin to a limit = doubtful "
     "(design). Missing data never give 'holds'. See docs/evaporation.md and docs/scenarios.md.")
 
 

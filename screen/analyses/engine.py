@@ -16,6 +16,7 @@ import numpy as np
 
 from screen import __version__
 from screen.analyses import barrier, pressure, simulation, technical_limits
+from screen.analyses.courses import AdiabaticCourse
 from screen.analyses.inputs import (
     ONSET_ESTIMATE_ACTIVATION_ENERGY,
     ONSET_ESTIMATE_DETECTION_LIMIT,
@@ -214,7 +215,8 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     methods["td24"] = "Start temperature at which TMRad = 24 h (TD8: 8 h), same model, root finding"
     methods["criticality_class"] = "Criticality classes (Stoessel, Chem. Eng. Prog. 89(10) 1993)"
     methods["severity"] = ("Severity from the runaway's adiabatic rise (final temperature - T_p); "
-                           "probability from TMRad at MTSR (Stoessel 2008 ch. 3; bands from memory)")
+                           "probability from TMRad at MTSR (Stoessel 2008 ch. 3; verify the band limits "
+                           "against the source)")
 
     conservative, reasons = dm.zero_order_is_conservative(kinetics, mtsr, cp)
     if model_name != "zero-order" and not bool(np.all(conservative)):
@@ -236,7 +238,8 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
             "Decomposition kinetics missing: TMRad and TD24 are a CRUDE estimate from the DSC "
             f"onset alone (zero order, E = {ONSET_ESTIMATE_ACTIVATION_ENERGY / 1000:.0f} kJ/mol, "
             f"{onset_reference['text']}; Keller et al. 1997, "
-            f"from memory). Measure the decomposition kinetics before relying on the class.")
+            f"verify against the source). Measure the decomposition kinetics before relying on "
+            f"the class.")
         if not onset_reference["declared"]:
             warnings.append(
                 "decomposition.onset_type is not declared: an extrapolated (tangent) onset lies "
@@ -248,7 +251,7 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                             "section are not used; the section is a crude onset estimate.")
         methods["tmrad"] = ("Crude estimate from the DSC onset (zero order, low activation "
                             "energy, onset as detection limit; Keller et al., J. Loss Prev. "
-                            "Process Ind. 10 (1997) 31-41, from memory)")
+                            "Process Ind. 10 (1997) 31-41; verify against the source)")
 
     lowest_measured = dec.lowest_measured_temperature or dec.reference_temperature
     if basis == "kinetics" and lowest_measured is None:
@@ -352,6 +355,8 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
         with np.errstate(all="ignore"):
             tmr_grid = np.asarray(dm.tmrad(kinetics, grid, cp), dtype=float)
         curve_data["tmrad_curve"] = (grid, tmr_grid)
+        # The unmitigated course from MTSR (figure 3 of the PDF); integrated on first use.
+        curve_data["adiabatic_course"] = AdiabaticCourse(kinetics, mtsr, cp)
 
     result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
                              curves=curve_data)
@@ -478,8 +483,14 @@ def _verdict_text(klass, severity_4, probability_6, status):
                 f"DSC onset alone gives class {klass}, which is not enough to grant a class below "
                 f"4. Measure the decomposition kinetics (DSC at several heating rates, or "
                 f"adiabatic calorimetry) and rerun. Severity {severity_4}.")
-    text = (f"Criticality class {klass}: {crit.CLASS_MEANINGS[klass]} Severity {severity_4}, "
-            f"probability {probability_6}.")
+    text = f"Criticality class {klass}: {crit.CLASS_MEANINGS[klass]} "
+    if klass <= 2:
+        # The class says the decomposition is not reached; the severity says what happens if it
+        # is triggered all the same (mass held hot, a second fault): never "no runaway".
+        text += (f"Severity {severity_4} should the decomposition be triggered all the same; "
+                 f"probability {probability_6}.")
+    else:
+        text += f"Severity {severity_4}, probability {probability_6}."
     if status == "crude-estimate":
         text = ("Crude estimate from the DSC onset only (decomposition kinetics missing); it "
                 "already gives a high class. " + text)

@@ -10,6 +10,8 @@ import math
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from screen.cautions import CAUTIONS as _CAUTIONS
+from screen.cautions import KINETICS_CAUTIONS
 from screen.constants import GAS_CONSTANT, ZERO_CELSIUS
 from screen.errors import CaseError, DataFileError
 
@@ -36,14 +38,8 @@ HEATING_RATE_SPAN = 4.0
 #: Fraction of the dominant area that makes the exotherm direction ambiguous (design).
 AMBIGUOUS_DIRECTION = 0.2
 
-CAUTIONS = (
-    "Screening aid only: the kinetic parameters are fitted to the DSC data given and depend on "
-    "their quality (calibration, sample representativeness, closed crucibles, baseline choice).",
-    "Extrapolation to storage or process temperatures assumes the same single mechanism; "
-    "confirm with isothermal or adiabatic calorimetry before relying on it.",
-    "A qualified process-safety review, local codes and regulations, and licensed practice "
-    "decide on safe operating conditions; this output does not.",
-)
+#: The cautions of every output, then those of the DSC evaluation (screen.cautions, one text).
+CAUTIONS = _CAUTIONS + KINETICS_CAUTIONS
 
 
 @dataclass
@@ -404,7 +400,8 @@ def _energy(result, given_energy):
         result.warnings.append(
             f"decomposition energy {result.energy['mean'] / 1e3:.4g} J/g exceeds 500 J/g: "
             "potentially explosive; the UN Manual of Tests and Criteria (appendix 6) screens for "
-            "explosive properties above 500 J/g (from memory; 500-800 J/g is common practice)"
+            "explosive properties above 500 J/g (verify against the source; 500-800 J/g is "
+            "common practice)"
         )
 
 
@@ -446,7 +443,8 @@ def _onset_and_td24(result, given_onset, q_det, cp):
                 "assumptions": (
                     f"zero order, E = {dsc.CRUDE_ACTIVATION_ENERGY / 1e3:.0f} kJ/mol, heat release "
                     f"rate at the onset = detection limit {q_det:g} W/kg, c'p = {cp / 1e3:g} kJ/(kg K); "
-                    "after Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41 (from memory)"
+                    "after Keller et al., J. Loss Prev. Process Ind. 10 (1997) 31-41 (verify against "
+                    "the source)"
                 ),
                 "label": "crude screening estimate",
                 "onset_minus_100K": t_low - 100.0,
@@ -550,7 +548,7 @@ def _model_summary(result):
             "explanation": [
                 "zero order with E = 50 kJ/mol and A chosen so that the heat release rate at the "
                 "onset equals the detection limit (crude worst-case assumptions, after Keller et "
-                "al. 1997, from memory); no kinetic data were given"
+                "al. 1997; verify against the source); no kinetic data were given"
             ],
         }
         result.warnings.append(

@@ -65,11 +65,11 @@ def format_portfolio(frame, files_count: int) -> str:
     files_count : int
         Number of case files screened.
     """
-    from screen.cautions import SHORT_CAUTION
+    from screen.report.terminal import caution_head, caution_lines
 
     errors = frame[frame["error"].notna()]
     lines = [f"Portfolio screening: {files_count} case files, {len(frame)} rows, "
-             f"{len(errors)} with errors", ""]
+             f"{len(errors)} with errors", *caution_head(), ""]
     lines.append(f"{'file':<28}{'vessel':<20}{'class':>5}{'MTSR':>7}{'TD24':>7}"
                  f"{'TMRad h':>10}  {'decomp./synthesis/barrier'}")
 
@@ -112,7 +112,7 @@ def format_portfolio(frame, files_count: int) -> str:
         lines += ["", "Cases per class: " + ", ".join(f"class {k}: {v}"
                                                      for k, v in counts.items())]
     lines += ["", "(MTSR and TD24 in degC; class n/c: cannot conclude; status: decomposition heat "
-              "balance / synthesis cooling / boiling barrier)", SHORT_CAUTION]
+              "balance / synthesis cooling / boiling barrier)", ""] + caution_lines()
     return "\n".join(lines)
 
 
@@ -256,8 +256,15 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
             if executor is not None:
                 executor.close()
         if csv_path:
-            write_atomic(csv_path, frame.to_csv(index=False, lineterminator="\n").encode("utf-8"),
-                         force=force, inputs=files)
+            import csv
+
+            from screen.cautions import csv_comment
+
+            # Leading comment line with the cautions; text cells quoted, so that a '#' in a name
+            # never reads as a comment (pandas.read_csv(path, comment="#")).
+            text = csv_comment() + frame.to_csv(index=False, lineterminator="\n",
+                                                quoting=csv.QUOTE_NONNUMERIC)
+            write_atomic(csv_path, text.encode("utf-8"), force=force, inputs=files)
         error_count = int(frame["error"].notna().sum())
         if as_json:
             payload = {"files": len(files), "rows": _json_rows(frame), "rows_with_errors":
@@ -266,7 +273,8 @@ def batch_command(paths, csv_path, workers, pdf_dir, allow_errors, as_json, over
         else:
             click.echo(format_portfolio(frame, len(files)))
             if csv_path:
-                click.echo(f"\nCSV written to {csv_path}")
+                click.echo(f"\nCSV written to {csv_path} (first line: the cautions, as a # "
+                           f"comment)")
         if error_count and not allow_errors:
             sys.exit(EXIT_ROWS_WITH_ERRORS)
 

@@ -12,6 +12,9 @@ from screen.cli.common import handle_errors, run_check, timestamp
 @click.command("check")
 @click.argument("case_file", type=click.Path(dir_okay=False))
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+@click.option("--detail", is_flag=True,
+              help="Print every figure, table, reason and warning (default: the first screen, "
+                   "about 60 lines).")
 @click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
               help="What-if override of a case value, e.g. --set 'process.temperature=70 degC'. "
                    "Repeatable. Vessels: vessel.KEY (all) or vessel.N.KEY.")
@@ -25,7 +28,8 @@ from screen.cli.common import handle_errors, run_check, timestamp
 @click.option("--limits", "with_limits", is_flag=True,
               help="Also find the safe operating limits (as the 'limits' command, defaults).")
 @handle_errors
-def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed, with_limits):
+def check_command(case_file, as_json, detail, overrides, pdf_path, force, samples, seed,
+                  with_limits):
     """Screen CASE_FILE and print the figures, the class and the warnings.
 
     \f
@@ -36,6 +40,8 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed,
         CASE_FILE argument: the TOML case file.
     as_json : bool
         ``--json``: print one JSON object instead of text.
+    detail : bool
+        ``--detail``: print everything instead of the first screen of about 60 lines.
     overrides : tuple of str
         ``--set KEY=VALUE`` what-if overrides (values with units).
     pdf_path : str or None
@@ -73,11 +79,12 @@ def check_command(case_file, as_json, overrides, pdf_path, force, samples, seed,
     else:
         from screen.report.terminal import format_check
 
-        click.echo(format_check(data))
+        extra = []
         if with_limits:
             from screen.report.limits import limit_lines
 
-            click.echo("\n" + "\n".join(limit_lines(data)))
+            extra = limit_lines(data)
+        click.echo(format_check(data, detail=detail, extra_lines=extra))
         if pdf_path:
             click.echo(f"\nPDF written to {pdf_path}")
 

@@ -18,24 +18,28 @@ def _load_any(path, overrides=()):
     return run_check(path, overrides).to_json_dict(generated_at=timestamp())
 
 
-def _fmt(value):
-    if value is None:
-        return "-"
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, float):
-        return f"{value:.4g}"
-    if isinstance(value, (tuple, list)):
-        return f"[{len(value)} items]"
-    return str(value)
+def _label(key: str) -> tuple[str, str]:
+    """(group, name) of a flattened result key: ``vessels[R-1].ua_W_per_K`` -> (``R-1``,
+    ``ua``); ``simulation.mtsr_feed_stopped_degC`` -> (``simulation``, ``mtsr_feed_stopped``)."""
+    import re
 
+    from screen.runs.compare import split_unit
 
-_ARROWS = {"up": "increased", "down": "decreased", "changed": "changed", "added": "added",
-           "removed": "removed"}
+    bare, _ = split_unit(key)
+    match = re.match(r"^(?:(\w+)\.)?vessels\[(.+?)\]\.(.+)$", bare)
+    if match:
+        block, name, rest = match.groups()
+        return (f"{block}: {name}" if block else name), rest.replace("_", " ")
+    if "." in bare:
+        group, rest = bare.rsplit(".", 1)
+        return group, rest.replace("_", " ")
+    return "", bare.replace("_", " ")
 
 
 def format_comparison(old, new, input_changes, result_changes) -> str:
-    """Plain-text comparison of two results, verdict changes first.
+    """Plain-text comparison of two results: verdict changes first, then the inputs that
+    differ, then a table of the figures (before, after, change, with units); differences below
+    the printed precision are left out; warnings the new result adds; the cautions.
 
     Parameters
     ----------
@@ -48,41 +52,94 @@ def format_comparison(old, new, input_changes, result_changes) -> str:
     result_changes : list of Change
         Changed results (:func:`screen.runs.compare.diff_dicts`).
     """
-    lines = [f"Comparison: {old['case']['path']}  ->  {new['case']['path']}", ""]
+    from screen.report.terminal import caution_head, caution_lines
+    from screen.runs.compare import printed, shows_a_difference, split_unit
+
+    lines = [f"Comparison: {old['case']['path']}  ->  {new['case']['path']}", *caution_head()]
+    for text in new.get("overrides") or []:
+        if text not in (old.get("overrides") or []):
+            lines.append(f"what-if    --set {text}")
+    lines.append("")
     verdicts = [c for c in result_changes if c.is_verdict]
     if verdicts:
-        lines.append("!!! VERDICT CHANGED !!!")
+        lines.append(f"VERDICT CHANGED ({len(verdicts)})")
         for c in verdicts:
-            lines.append(f"  !!! {c.key}: {_fmt(c.old)}  ->  {_fmt(c.new)}")
+            group, name = _label(c.key)
+            label = f"{group}: {name}" if group else name
+            lines.append(f"  {label[:46]:<46} {_cell(c.old, ''):>12}  ->  {_cell(c.new, '')}")
     else:
-        lines.append("No verdict changed (class, severity, probability, vessel stability).")
+        lines.append("No verdict changed (class, severity, probability, per-vessel verdicts, "
+                     "barrier).")
     lines.append("")
     lines.append(f"Inputs that differ ({len(input_changes)})")
     for c in input_changes:
-        lines.append(f"  {c.key:<42} {_fmt(c.old):>16}  ->  {_fmt(c.new):<16} "
-                     f"{_ARROWS[c.direction]}")
+        lines.append(f"  {c.key}: {printed(c.old)}  ->  {printed(c.new)}")
     lines.append("")
     others = [c for c in result_changes if not c.is_verdict]
-    lines.append(f"Figures that changed ({len(others)})")
-    for c in others:
+    shown = [c for c in others if shows_a_difference(c)]
+    hidden = len(others) - len(shown)
+    lines.append(f"Figures that changed ({len(shown)}"
+                 + (f"; {hidden} more below the printed precision, see --json" if hidden else "")
+                 + ")")
+    if shown:
+        lines.append(f"  {'figure':<36}{'unit':<8}{'before':>11}{'after':>11}{'change':>10}")
+    group_shown = None
+    for c in shown:
+        group, name = _label(c.key)
+        if group != group_shown:
+            if group:
+                lines.append(f"  {group}")
+            group_shown = group
+        unit = split_unit(c.key)[1]
         delta = c.delta
-        extra = f"  ({delta:+.4g})" if delta is not None else ""
-        lines.append(f"  {c.key:<52} {_fmt(c.old):>10} -> {_fmt(c.new):<10} "
-                     f"{_ARROWS[c.direction]}{extra}")
-    from screen.cautions import SHORT_CAUTION
+        change = ("" if delta is None else
+                  printed(delta, "K" if unit == "degC" else unit) if delta < 0 else
+                  "+" + printed(delta, "K" if unit == "degC" else unit))
+        if delta is None:
+            change = {"added": "added", "removed": "removed"}.get(c.direction, "changed")
+        indent = "    " if group else "  "
+        width = 38 - len(indent)
+        name = name if len(name) < width else name[:width - 2] + "~"
+        before, after = _cell(c.old, unit), _cell(c.new, unit)
+        lines.append(f"{indent}{name:<{width}}{unit:<8}{before:>11}{after:>11}{change:>11}")
+    added = _new_warnings(old, new)
+    if added:
+        from screen.report.terminal import WIDTH, textwrap
 
-    lines += ["", SHORT_CAUTION]
+        lines += ["", f"New warnings ({len(added)})"]
+        for text in added:
+            lines.append(textwrap.fill(text, WIDTH, initial_indent="  - ",
+                                       subsequent_indent="    "))
+    lines += [""] + caution_lines()
     return "\n".join(lines)
+
+
+def _cell(value, unit) -> str:
+    """A table cell: the printed figure; a sentence is only named (it is in --json)."""
+    from screen.runs.compare import printed
+
+    text = printed(value, unit)
+    return "(text)" if isinstance(value, str) and len(text) > 24 else text
+
+
+def _new_warnings(old_data, new_data) -> list[str]:
+    """Warnings of the new result that the old one did not raise (a what-if may need them)."""
+    before = set(old_data.get("warnings") or [])
+    return [w for w in new_data.get("warnings") or [] if w not in before]
 
 
 @click.command("compare")
 @click.argument("old", type=click.Path(dir_okay=False))
-@click.argument("new", type=click.Path(dir_okay=False))
+@click.argument("new", type=click.Path(dir_okay=False), required=False)
+@click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
+              help="What-if override applied to NEW (or, without NEW, to OLD: the case against "
+                   "its own what-if), e.g. --set 'synthesis.dosing_time=8 h'. Repeatable.")
 @click.option("--json", "as_json", is_flag=True, help="Print the differences as JSON.")
 @click.option("--fail-on-verdict-change", is_flag=True,
               help="Exit with status 1 when a verdict changed (for scripted reviews).")
-def compare_command(old, new, as_json, fail_on_verdict_change):
-    """Compare two case files (or a case and an earlier --json result): what changed.
+def compare_command(old, new, overrides, as_json, fail_on_verdict_change):
+    """Compare two case files (or a case and an earlier --json result), or a case with its own
+    what-if (--set): verdict changes first, then the figures that changed.
 
     \f
 
@@ -90,8 +147,11 @@ def compare_command(old, new, as_json, fail_on_verdict_change):
     ----------
     old : str
         OLD argument: case file or earlier ``check --json`` output.
-    new : str
-        NEW argument: case file or ``check --json`` output.
+    new : str or None
+        NEW argument: case file or ``check --json`` output; None compares OLD with its own
+        what-if (``--set``).
+    overrides : tuple of str
+        ``--set KEY=VALUE`` what-if overrides applied to NEW (or to OLD without NEW).
     as_json : bool
         ``--json``: print the differences as JSON.
     fail_on_verdict_change : bool
@@ -102,16 +162,28 @@ def compare_command(old, new, as_json, fail_on_verdict_change):
     @handle_errors
     def run():
         from screen.cautions import CAUTIONS
-        from screen.runs.compare import diff_results
+        from screen.errors import CaseError
+        from screen.runs.compare import diff_results, shows_a_difference
 
-        old_data, new_data = _load_any(old), _load_any(new)
+        target = new if new is not None else old
+        if new is None and not overrides:
+            raise CaseError("give NEW (a case file or a --json result) or --set KEY=VALUE to "
+                            "compare the case with its own what-if", "compare")
+        if overrides and str(target).lower().endswith(".json"):
+            raise CaseError("--set needs a case file (.toml), not an earlier --json result",
+                            "--set", str(target))
+        old_data, new_data = _load_any(old), _load_any(target, overrides)
         input_changes, result_changes = diff_results(old_data, new_data)
         if as_json:
             payload = {
                 "old": old_data["case"], "new": new_data["case"],
+                "overrides": list(overrides),
                 "verdict_changed": any(c.is_verdict for c in result_changes),
                 "input_changes": [c.__dict__ for c in input_changes],
-                "result_changes": [dict(c.__dict__, delta=c.delta) for c in result_changes],
+                "result_changes": [dict(c.__dict__, delta=c.delta,
+                                        shown=c.is_verdict or shows_a_difference(c))
+                                   for c in result_changes],
+                "warnings": new_data.get("warnings", []),
                 "cautions": list(CAUTIONS),
             }
             click.echo(json.dumps(payload, indent=2, ensure_ascii=False, default=str))
@@ -158,7 +230,7 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
 
     @handle_errors
     def run():
-        from screen.cautions import CAUTIONS, SHORT_CAUTION
+        from screen.cautions import CAUTIONS
         from screen.errors import ScreenError
         from screen.io.case import load_case
         from screen.runs.sweep import parse_vary, run_sweep, to_display
@@ -193,17 +265,21 @@ def sweep_command(case_file, vary, overrides, csv_path, force, as_json):
             }
             click.echo(json.dumps(payload, indent=2, ensure_ascii=False, default=str))
             return
+        from screen.report.terminal import caution_lines
+
         click.echo(_format_sweep(case, variations, rows, flips, to_display))
         if csv_path:
-            click.echo(f"\nCSV written to {csv_path}")
-        click.echo("\n" + SHORT_CAUTION)
+            click.echo(f"\nCSV written to {csv_path} (first line: the cautions, as a # comment)")
+        click.echo("\n" + "\n".join(caution_lines()))
 
     run()
 
 
 def _format_sweep(case, variations, rows, flips, to_display):
     first = variations[0]
-    lines = [f"Sweep of {case.title}", f"  {first.key} over {first.text}"]
+    from screen.report.terminal import caution_head
+
+    lines = [f"Sweep of {case.title}", *caution_head(), f"  {first.key} over {first.text}"]
     if len(variations) > 1:
         lines.append(f"  {variations[1].key} over {variations[1].text}")
     lines.append("")
@@ -262,8 +338,13 @@ def _write_csv(rows, path, force, variations=(), inputs=()):
         for key in row:
             if key not in keys:
                 keys.append(key)
+    from screen.cautions import csv_comment
+
     buffer = io.StringIO()
-    writer = csv.DictWriter(buffer, fieldnames=keys, lineterminator="\n")
+    buffer.write(csv_comment())
+    # Text cells quoted, so that a '#' in a name never reads as a comment (pandas comment="#").
+    writer = csv.DictWriter(buffer, fieldnames=keys, lineterminator="\n",
+                            quoting=csv.QUOTE_NONNUMERIC)
     writer.writeheader()
     for row in rows:
         writer.writerow(row)

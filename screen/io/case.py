@@ -537,6 +537,7 @@ def build_case(raw: dict, path: str = "<memory>", sha256: str = "", overrides=()
         raise CaseError("vessel names must be unique", "vessel.name", path)
 
     _check_consistency(sections, vessels, path, warnings)
+    warnings.extend(accumulation_override_warnings(raw, overrides))
     return Case(path=path, sha256=sha256, raw=raw, sections=sections, vessels=tuple(vessels),
                 inputs=tuple(inputs), overrides=tuple(overrides), uncertainties=uncertainties,
                 warnings=tuple(warnings))
@@ -610,6 +611,49 @@ MASS_RATIO_MISSING = (
     "semi-batch needs accumulation_mass_ratio (mass present at the maximum accumulation over "
     "the final mass, 0..1], e.g. 0.8), or synthesis_kinetics.initial_mass so that the smallest "
     "possible ratio (initial charge / final mass) can be taken; 1 would give the lowest MTSR")
+
+
+#: Inputs whose change changes the thermal accumulation of the run (a stated accumulation was
+#: measured at the written values): process temperature, dosing time, feed rate or profile.
+ACCUMULATION_CONDITIONS = (
+    "process.temperature", "synthesis.dosing_time", "synthesis_kinetics.dosing_time",
+    "synthesis_kinetics.feed_profile", "synthesis_kinetics.feed_amount",
+    "synthesis_kinetics.feed_mass", "synthesis_kinetics.feed_temperature",
+)
+
+
+def accumulation_override_warnings(raw: dict, overrides=()) -> list[str]:
+    """Warnings for ``--set`` overrides of an input that the stated accumulation depends on.
+
+    The accumulation in ``[process]`` was established (measured) at the process temperature and
+    feed written in the case; a what-if that changes them keeps that accumulation unless the
+    accumulation is overridden as well.
+
+    Parameters
+    ----------
+    raw : dict
+        The decoded case (after the overrides).
+    overrides : iterable of str
+        The ``KEY=VALUE`` overrides applied.
+
+    Returns
+    -------
+    list of str
+        One warning naming the overridden keys, or none.
+    """
+    process = raw.get("process") if isinstance(raw.get("process"), dict) else {}
+    if "accumulation" not in process:
+        return []
+    keys = [str(text).split("=", 1)[0].strip() for text in overrides if "=" in str(text)]
+    if "process.accumulation" in keys:
+        return []
+    changed = [key for key in keys if key in ACCUMULATION_CONDITIONS]
+    if not changed:
+        return []
+    return [f"--set {', '.join(changed)}: the stated accumulation (process.accumulation = "
+            f"{process['accumulation']}) was measured under other conditions (those written in "
+            f"the case) and is kept unchanged; the MTSR and the class rest on it. Measure the "
+            f"accumulation under the new conditions and set process.accumulation as well."]
 
 
 def _check_consistency(sections, vessels, path, warnings) -> None:

@@ -33,10 +33,10 @@ import numpy as np
 from screen.errors import ModelDomainError
 
 CLASS_MEANINGS = {
-    1: "No runaway expected: the synthesis cannot reach the decomposition range, and boiling "
-       "(MTT) would act as a further barrier.",
-    2: "No runaway from the synthesis alone, but the mass must not be held near the MTT for long: "
-       "TD24 lies below the MTT.",
+    1: "After a cooling failure the synthesis alone stays below the MTT and TD24: it does not "
+       "reach the decomposition range, and boiling (MTT) would act as a further barrier.",
+    2: "After a cooling failure the synthesis alone does not reach the decomposition range, but "
+       "the mass must not be held near the MTT for long: TD24 lies below the MTT.",
     3: "The synthesis runaway reaches the MTT; evaporative cooling (or pressure relief) is the "
        "barrier that must be designed and checked. The decomposition is not reached.",
     4: "The synthesis runaway would reach the decomposition range; the barrier at the MTT "

@@ -725,6 +725,30 @@ def _scenario_is_worse(row, base) -> bool:
     return now > before and row.get("barrier_verdict") != "holds"
 
 
+def scenario_footnote(rows) -> str:
+    """The note under the scenario table: it explains only the words the table shows, so that
+    it never contradicts a row (NOT ASSESSED is explained only where a row says it).
+
+    Parameters
+    ----------
+    rows : list of dict
+        ``results.scenarios.rows``.
+    """
+    text = ("Ratio: TMRad at MTSR over the base value. Barrier: verdict of evaporative cooling "
+            "at the MTT in that scenario.")
+    words = {str(r.get("barrier_verdict")) for r in rows if isinstance(r, dict)}
+    classes = [r.get("criticality_class") for r in rows if isinstance(r, dict)
+               and not r.get("error")]
+    if any(c is None for c in classes):
+        text += " n/c: the class cannot be concluded without decomposition kinetics."
+    if "not assessed" in words:
+        text += (" NOT ASSESSED: in that scenario MTSR stays below the MTT, so boiling is not "
+                 "called upon.")
+    if "not demonstrated" in words:
+        text += " NOT DEMONSTRATED: no criterion fails, but data are missing."
+    return text
+
+
 def scenarios_block(block, styles):
     """Base case against each deviation: MTSR, TMRad at MTSR, class, barrier, and the changes.
 
@@ -775,9 +799,7 @@ def scenarios_block(block, styles):
         paragraph(summary, styles["block_intro"]),
         table(rows, widths, align_right_columns=range(1, 7), bold_rows=bold, padding=1.5,
               extra_commands=spans),
-        paragraph("Ratio: TMRad at MTSR over the base value. n/c: the class cannot be concluded "
-                  "without decomposition kinetics. Barrier: evaporative cooling at the MTT "
-                  "(NOT ASSESSED: MTSR stays below the MTT).", styles["note_after"]),
+        paragraph(scenario_footnote(rows_in), styles["note_after"]),
     ])]
     notes = [paragraph("How each deviation was derived", styles["h3"])]
     for row in rows_in:

@@ -4,9 +4,9 @@ One function per figure turns a :class:`screen.analyses.engine.ScreeningResult` 
 :class:`FigureData`: the keyword arguments of the drawing function (the same name in
 :mod:`screen.report.figures`, reportlab, for the PDF, and in :mod:`screen.report.mpl`,
 matplotlib, for notebooks) plus notes that the captions need. Both surfaces draw from this data,
-so the PDF and ``result.figure(name)`` show the same numbers; the only figure data not computed
-by the engine, the adiabatic course from MTSR, is computed here once per result and kept in
-``result.curves["adiabatic_course"]``.
+so the PDF and ``result.figure(name)`` show the same numbers; every array comes from the engine
+(the adiabatic course from MTSR too: ``result.curves["adiabatic_course"]``, integrated on first
+use); nothing is computed here.
 """
 
 from __future__ import annotations
@@ -20,7 +20,7 @@ FIGURE_NAMES = ("criticality", "tmrad", "course", "semenov", "simulation", "sens
 #: Legends of the simulated courses after the worst failure (the wording is relied on by tests).
 SIMULATED_COURSE_LABEL = "simulated course after failure at the worst time (feed stopped)"
 SIMULATED_CONTINUING_LABEL = "simulated course after failure at the worst time (feed continuing)"
-ADIABATIC_COURSE_LABEL = "adiabatic decomposition from MTSR"
+ADIABATIC_COURSE_LABEL = "unmitigated: adiabatic decomposition from MTSR"
 
 
 @dataclass
@@ -60,7 +60,7 @@ def criticality(result) -> FigureData:
     else:
         label = f"criticality class {results.get('criticality_class')}"
         if results.get("verdict_status", "screened") != "screened":
-            label += " (crude estimate from the DSC onset)"
+            label += " at least (crude estimate from the DSC onset)"
     return FigureData("criticality", "temperature_scale",
                       {"temperatures_k": result.curves["temperatures_K"], "class_label": label})
 
@@ -127,10 +127,9 @@ def simulated_courses(result):
 
 
 def adiabatic_course(result):
-    """(time [s], temperature [K], time to maximum rate [s] or None) of the adiabatic
-    decomposition from MTSR (the screening course, without the simulation).
-
-    Computed once per result and kept in ``result.curves["adiabatic_course"]``.
+    """(time [s], temperature [K], time to maximum rate [s] or None) of the unmitigated
+    adiabatic course from MTSR, as the engine gives it in ``curves["adiabatic_course"]``
+    (:class:`screen.analyses.courses.AdiabaticCourse`); nothing is computed here.
 
     Parameters
     ----------
@@ -140,51 +139,35 @@ def adiabatic_course(result):
     Raises
     ------
     ScreenError
-        The course cannot be integrated for these kinetics.
+        The result carries no course (screened without curves), or the course cannot be
+        integrated for these kinetics.
     """
-    cached = result.curves.get("adiabatic_course")
-    if cached is not None:
-        return cached
-    import numpy as np
+    course = result.curves.get("adiabatic_course") if isinstance(result.curves, dict) else None
+    if course is None:
+        from screen.errors import ModelDomainError
 
-    from screen.models.decomposition import adiabatic_course as integrate
-
-    temperatures = result.curves["temperatures_K"]
-    course = integrate(result.curves["kinetics"], temperatures["MTSR"],
-                       result.curves["specific_heat"])
-    time = temperature = tmr = None
-    if isinstance(course, dict):
-        time = _first_array(course, ("time_s", "time"))
-        temperature = _first_array(course, ("temperature_K", "temperature"))
-        tmr = course.get("time_to_maximum_rate_s")
-    elif hasattr(course, "time") or hasattr(course, "time_s"):
-        time = getattr(course, "time_s", None)
-        if time is None:
-            time = getattr(course, "time")
-        temperature = getattr(course, "temperature_K", None)
-        if temperature is None:
-            temperature = getattr(course, "temperature")
-        tmr = getattr(course, "time_to_maximum_rate", None)
-        if tmr is None:
-            tmr = getattr(course, "time_to_maximum_rate_s", None)
-    else:
-        time, temperature = course[0], course[1]
-    time = np.asarray(time, dtype=float)
-    temperature = np.asarray(temperature, dtype=float)
-    if tmr is None and len(time) > 2:
-        rate = np.gradient(temperature, time)
-        finite = np.isfinite(rate)
-        if finite.any():
-            tmr = float(time[int(np.nanargmax(np.where(finite, rate, -np.inf)))])
-    result.curves["adiabatic_course"] = (time, temperature, tmr)
-    return result.curves["adiabatic_course"]
+        raise ModelDomainError("the result carries no adiabatic course (screened without "
+                               "curves)")
+    return course.time_s, course.temperature_K, course.time_to_maximum_rate_s
 
 
-def _first_array(mapping, names):
-    for name in names:
-        if name in mapping and mapping[name] is not None:
-            return mapping[name]
-    return None
+def barrier_course_label(results) -> str:
+    """Legend of the barrier line of the course figure: what the barrier at the MTT does, with
+    the verdict of the barrier analysis (never a verdict of its own).
+
+    Parameters
+    ----------
+    results : dict
+        ``result.results`` (its ``barrier`` member, when present).
+    """
+    barrier = results.get("barrier") if isinstance(results.get("barrier"), dict) else None
+    verdict = barrier.get("verdict") if barrier is not None and barrier.get("assessed") else None
+    if verdict == "holds":
+        return "with the barrier (HOLDS): boiling keeps the mass at the MTT"
+    if verdict:
+        return (f"barrier {str(verdict).upper()}: boiling would have to keep the mass at the "
+                f"MTT")
+    return "barrier not assessed: boiling or relief would have to keep the mass at the MTT"
 
 
 def course(result) -> FigureData:
@@ -215,7 +198,8 @@ def course(result) -> FigureData:
                           {"time_s": time, "temperature_k": temperature, "levels_k": levels,
                            "process_temperature_k": temps.get("T_p"),
                            "time_to_maximum_rate_s": None, "jump_at_start": False,
-                           "label": SIMULATED_COURSE_LABEL, "extra_courses": extra},
+                           "label": SIMULATED_COURSE_LABEL, "extra_courses": extra,
+                           "barrier_label": barrier_course_label(result.results)},
                           {"source": "simulation", "failure_time_s": failure,
                            "failure_time_feed_continuing_s": continuing,
                            "feed_continuing": bool(extra)})
@@ -224,7 +208,8 @@ def course(result) -> FigureData:
                       {"time_s": time, "temperature_k": temperature, "levels_k": levels,
                        "process_temperature_k": temps.get("T_p"),
                        "time_to_maximum_rate_s": time_max, "jump_at_start": True,
-                       "label": ADIABATIC_COURSE_LABEL},
+                       "label": ADIABATIC_COURSE_LABEL,
+                       "barrier_label": barrier_course_label(result.results)},
                       {"source": "adiabatic"})
 
 

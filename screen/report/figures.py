@@ -308,7 +308,8 @@ def semenov_diagram(curve: dict):
 
 def temperature_course(time_s, temperature_k, levels_k: dict, process_temperature_k=None,
                        time_to_maximum_rate_s=None, jump_at_start=True,
-                       label="adiabatic decomposition from MTSR", extra_courses=()):
+                       label="unmitigated adiabatic course from MTSR", extra_courses=(),
+                       barrier_label=None, zoom=True):
     """Temperature-time course after a cooling failure.
 
     Parameters
@@ -328,6 +329,12 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
     extra_courses : sequence of (array, array, str)
         Further courses (time after the failure [s], temperature [K], legend text), drawn
         dashed in the accent colour (e.g. the feed continuing after the failure).
+    barrier_label : str, optional
+        Legend text of what the barrier at the MTT does: from the moment the course reaches the
+        MTT a thick dotted line holds the temperature there (boiling or relief).
+    zoom : bool
+        Add a lower panel over the range of T_p and the levels when the full course would
+        squeeze them into a narrow band (the high end of a runaway is far above them).
     """
     def finite_course(time, temperature):
         hours = np.asarray(time, dtype=float) / SECONDS_PER_HOUR
@@ -344,35 +351,67 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
     candidates = [v for v in celsius if math.isfinite(v)]
     candidates += [v for _, c, _ in others for v in c]
     candidates += [_c(v) for v in levels_k.values() if _finite(v)]
-    if _finite(process_temperature_k):
-        candidates.append(_c(process_temperature_k))
+    t_p = _c(process_temperature_k) if _finite(process_temperature_k) else None
+    if t_p is not None:
+        candidates.append(t_p)
     low, high = min(candidates), max(candidates)
     margin = 0.05 * (high - low) or 5.0
 
-    height = 205.0
-    plot_height = height - 36.0 - 8.0
+    # The zoom window: T_p, the start of the course and the levels, where the decisions lie.
+    near = [_c(v) for v in levels_k.values() if _finite(v)] + [t_p]
+    near += [float(celsius[0])] if math.isfinite(celsius[0]) else []
+    near = [v for v in near if v is not None]
+    zoom_low, zoom_high = min(near), max(near)
+    zoom_margin = max(0.12 * (zoom_high - zoom_low), 4.0)
+    zoom_limits = (zoom_low - zoom_margin, zoom_high + zoom_margin)
+    use_zoom = bool(zoom) and (high - low) > 3.0 * (zoom_limits[1] - zoom_limits[0])
+
+    main_height = 205.0 - 36.0 - 8.0
+    zoom_height = 105.0 if use_zoom else 0.0
+    gap = 30.0 if use_zoom else 0.0
+    height = 36.0 + zoom_height + gap + main_height + 8.0
     top = high + margin
-    if not jump_at_start:
-        # A simulated course rises early and levels off, under the legend (upper left): keep
-        # the legend rows above the highest temperature.
-        rows = 1 + len(others)
-        fraction = min((rows * 6.8 * 1.45 + 10.0) / plot_height, 0.4)
+    if not jump_at_start or barrier_label or others:
+        # The legend (upper left) sits above the highest temperature of a course that rises
+        # early and levels off.
+        rows = 1 + len(others) + (1 if barrier_label else 0) + (1 if jump_at_start else 0)
+        fraction = min((rows * 6.8 * 1.45 + 10.0) / main_height, 0.45)
         top = high + margin + fraction / (1.0 - fraction) * (high + margin - (low - margin))
     drawing = _drawing(height)
-    ax = Axes(drawing, 52.0, 36.0, WIDTH - 52.0 - 70.0, plot_height,
-              (-0.015 * end, 1.02 * end), (low - margin, top))
-    ax.frame(xlabel="time after the cooling failure [h]", ylabel="temperature [°C]")
+    xlim = (-0.015 * end, 1.02 * end)
+    ax = Axes(drawing, 52.0, 36.0 + zoom_height + gap, WIDTH - 52.0 - 70.0, main_height, xlim,
+              (low - margin, top))
+    ax.frame(xlabel=None if use_zoom else "time after the cooling failure [h]",
+             ylabel="temperature [°C]")
+    entries = _course_panel(ax, hours, celsius, others, levels_k, t_p, jump_at_start,
+                            time_to_maximum_rate_s, label, barrier_label)
+    ax.legend(entries, corner="upper left")
+    if use_zoom:
+        zoom_ax = Axes(drawing, 52.0, 36.0, WIDTH - 52.0 - 70.0, zoom_height, xlim, zoom_limits)
+        zoom_ax.frame(xlabel="time after the cooling failure [h]", ylabel="temperature [°C]")
+        _course_panel(zoom_ax, hours, celsius, others, levels_k, t_p, jump_at_start,
+                      time_to_maximum_rate_s, label, barrier_label)
+        zoom_ax.text(zoom_ax.fx(0.0), zoom_ax.fy(1.0) + 4, "zoom on the range of T_{p}, MTSR, "
+                     "the MTT and T_{D24} (the course leaves it upward)", size=6.8,
+                     color=GREY_DARK)
+    return drawing
+
+
+def _course_panel(ax, hours, celsius, others, levels_k, t_p, jump_at_start, time_max, label,
+                  barrier_label):
+    """Levels, courses, the barrier at the MTT and the moment of maximum rate in one panel;
+    returns the legend entries."""
     dashes = {"MTT": DASH_DOT, "TD24": DASHED, "TD8": DOTTED}
     names = {"MTT": "MTT", "TD24": "T_{D24}", "TD8": "T_{D8}"}
-    labelled = [(key, _c(value)) for key, value in levels_k.items() if _finite(value)]
+    labelled = [(key, _c(value)) for key, value in levels_k.items() if _finite(value)
+                and ax.ylim[0] <= _c(value) <= ax.ylim[1]]
     placed = spread_labels([v for _, v in labelled], 9.5 * (ax.ylim[1] - ax.ylim[0]) / ax.height)
     for (key, value), y in zip(labelled, placed):
         ax.hline(value, color=GREY_DARK, width=0.9, dash=dashes.get(key))
         ax.text(ax.fx(1.0) + 3, ax.ty(y), f"{names.get(key, key)} {value:.1f} °C", size=6.8,
                 valign="middle")
     entries = []
-    if jump_at_start and _finite(process_temperature_k) and math.isfinite(celsius[0]):
-        t_p = _c(process_temperature_k)
+    if jump_at_start and t_p is not None and math.isfinite(celsius[0]):
         ax.line([0.0, 0.0], [t_p, celsius[0]], color=ACCENT, width=1.8)
         ax.marker(0.0, t_p, shape="s", size=4.0)
         entries.append(("line", dict(color=ACCENT, width=1.8),
@@ -382,14 +421,23 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
     for other_hours, other_celsius, text in others:
         ax.line(other_hours, other_celsius, color=ACCENT, width=1.4, dash=DASHED)
         entries.append(("line", dict(color=ACCENT, width=1.4, dash=DASHED), text))
-    if _finite(time_to_maximum_rate_s):
-        x = float(time_to_maximum_rate_s) / SECONDS_PER_HOUR
+    mtt = levels_k.get("MTT")
+    if barrier_label and _finite(mtt):
+        mtt_c = _c(mtt)
+        reached = np.nonzero(celsius >= mtt_c)[0]
+        if len(reached):
+            start = float(hours[reached[0]])
+            ax.line([start, float(hours[-1])], [mtt_c, mtt_c], color=ACCENT, width=2.4,
+                    dash=DOTTED)
+            ax.marker(start, mtt_c, shape="o", size=3.5, fill="#ffffff", stroke=ACCENT)
+        entries.append(("line", dict(color=ACCENT, width=2.4, dash=DOTTED), barrier_label))
+    if _finite(time_max):
+        x = float(time_max) / SECONDS_PER_HOUR
         if hours[0] <= x <= hours[-1] * 1.0001:
             px = ax.vline(x, color=GREY_MID, width=0.8, dash=DOTTED)
             ax.text(px - 3, ax.fy(0.04), f"maximum rate after {x:.3g} h", size=6.5,
                     anchor="end", color=GREY_DARK, background="#ffffff")
-    ax.legend(entries, corner="upper left")
-    return drawing
+    return entries
 
 
 def run_profile(time_s, series, levels_k=None, marker_time_s=None):

@@ -6,6 +6,7 @@ import math
 from pathlib import Path
 
 from screen.analyses.kinetics import lowest_measured_temperature
+from screen.cautions import CAUTIONS, caution_text
 from screen.constants import ZERO_CELSIUS
 from screen.errors import CaseError, OutputError
 
@@ -110,7 +111,7 @@ def result_to_dict(result):
             "astm_e698": {
                 "method": "log10(beta) against 1/Tp, E = -2.19 R slope refined with D(E/RT) "
                           "from the exact temperature integral until stationary (ASTM E698 "
-                          "procedure as reconstructed from memory)",
+                          "procedure; verify against the standard)",
                 "first_approximation_kJ_per_mol": _f(a.first_approximation, 1e3),
                 "activation_energy_kJ_per_mol": _f(a.activation_energy, 1e3),
                 "activation_energy_ci_kJ_per_mol": _interval(a.activation_energy_interval, 1e3),
@@ -417,6 +418,25 @@ def figures(result):
     return out
 
 
+def add_caution(fig, cautions=CAUTIONS) -> None:
+    """The cautions (screen.cautions, the same text as every output) under the axes.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+        The figure; its layout leaves room for the text at its foot.
+    cautions : sequence of str
+        The cautions (:data:`screen.cautions.CAUTIONS`, then those of the analysis).
+    """
+    import textwrap
+
+    text = caution_text(cautions)
+    lines = textwrap.wrap(text, 135)
+    share = min(0.04 + 0.022 * len(lines), 0.3)
+    fig.tight_layout(rect=(0.0, share, 1.0, 1.0))
+    fig.text(0.01, 0.01, "\n".join(lines), fontsize=5.0, va="bottom", ha="left", color="0.25")
+
+
 def write_pngs(result, directory):
     """Save :func:`figures` as PNG files in ``directory`` (created if needed).
 
@@ -432,11 +452,13 @@ def write_pngs(result, directory):
     list of pathlib.Path
         Files written (existing figures of the same name are replaced).
     """
-    return save_pngs(figures(result), directory, "the kinetics figures (--png-dir)")
+    return save_pngs(figures(result), directory, "the kinetics figures (--png-dir)",
+                     cautions=getattr(result, "cautions", None) or CAUTIONS)
 
 
-def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)"):
-    """Save matplotlib figures as ``NAME.png`` in ``directory`` (created if needed).
+def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)", cautions=CAUTIONS):
+    """Save matplotlib figures as ``NAME.png`` in ``directory`` (created if needed), each with
+    the cautions under its axes and in its PNG ``Description`` text chunk.
 
     Parameters
     ----------
@@ -446,6 +468,8 @@ def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)"):
         Folder for the PNG files.
     purpose : str
         What needs matplotlib, for the message when it is missing.
+    cautions : sequence of str
+        The cautions (:data:`screen.cautions.CAUTIONS`, followed by those of the analysis).
 
     Returns
     -------
@@ -467,8 +491,10 @@ def save_pngs(figures_by_name, directory, purpose="the figures (--png-dir)"):
     written = []
     for name, fig in figures_by_name.items():
         path = target / f"{name}.png"
+        add_caution(fig, cautions)
         buffer = io.BytesIO()
-        fig.savefig(buffer, format="png", dpi=120)
+        fig.savefig(buffer, format="png", dpi=120,
+                    metadata={"Description": caution_text(cautions)})
         write_atomic(path, buffer.getvalue(), force=True)  # the one writer; figures are replaced
         written.append(path)
     return written

@@ -334,9 +334,11 @@ def semenov_diagram(curve: dict):
 
 def temperature_course(time_s, temperature_k, levels_k: dict, process_temperature_k=None,
                        time_to_maximum_rate_s=None, jump_at_start=True,
-                       label="adiabatic decomposition from MTSR", extra_courses=()):
+                       label="unmitigated: adiabatic decomposition from MTSR", extra_courses=(),
+                       barrier_label=None, zoom=True):
     """Temperature course after a cooling failure (see
-    :func:`screen.report.figures.temperature_course`).
+    :func:`screen.report.figures.temperature_course`: the same arguments, the barrier at the MTT
+    and a lower zoom panel on the range of T_p and the levels where it is needed).
 
     Parameters
     ----------
@@ -356,13 +358,18 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
         Legend text of the course.
     extra_courses : sequence of (array, array, str)
         Further courses: time [s], temperature [K], legend text.
+    barrier_label : str, optional
+        Legend of the barrier line: from the moment the course reaches the MTT, a thick dotted
+        line holds the temperature there (boiling or relief).
+    zoom : bool
+        Add a lower panel over the range of T_p and the levels when the full course squeezes
+        them into a narrow band.
     """
     import numpy as np
 
     from screen.constants import SECONDS_PER_HOUR
 
     figures, style = _style()
-    figure, ax = _figure(3.3)
 
     def finite_course(time, temperature):
         hours = np.asarray(time, dtype=float) / SECONDS_PER_HOUR
@@ -371,37 +378,71 @@ def temperature_course(time_s, temperature_k, levels_k: dict, process_temperatur
         return hours[valid], celsius[valid]
 
     hours, celsius = finite_course(time_s, temperature_k)
-    ax.set_xlabel("time after the cooling failure [h]")
-    ax.set_ylabel("temperature [°C]")
-    ax.grid(True, color=style.GREY_LIGHT, linewidth=0.4)
+    levels = {key: _c(value) for key, value in levels_k.items() if _finite(value)}
+    t_p = _c(process_temperature_k) if _finite(process_temperature_k) else None
+    near = list(levels.values()) + ([t_p] if t_p is not None else [])
+    near += [float(celsius[0])] if len(celsius) else []
+    values = list(celsius) + near
+    use_zoom = False
+    if zoom and near and values:
+        pad = max(0.12 * (max(near) - min(near)), 4.0)
+        zoom_limits = (min(near) - pad, max(near) + pad)
+        use_zoom = (max(values) - min(values)) > 3.0 * (zoom_limits[1] - zoom_limits[0])
+    figure, ax = _figure(5.0 if use_zoom else 3.3)
+    panels = [ax]
+    if use_zoom:
+        ax.set_subplotspec(figure.add_gridspec(2, 1, height_ratios=(3, 2))[0])
+        zoom_ax = figure.add_subplot(figure.axes[0].get_subplotspec().get_gridspec()[1],
+                                     sharex=ax)
+        zoom_ax.set_ylim(*zoom_limits)
+        zoom_ax.set_title(_text("zoom on the range of T_{p}, MTSR, the MTT and T_{D24}"),
+                          fontsize=7, loc="left")
+        panels.append(zoom_ax)
     dashes = {"MTT": figures.DASH_DOT, "TD24": figures.DASHED, "TD8": figures.DOTTED}
     names = {"MTT": "MTT", "TD24": "T_{D24}", "TD8": "T_{D8}"}
-    for key, value in levels_k.items():
-        if _finite(value):
-            ax.axhline(_c(value), color=style.GREY_DARK, linewidth=0.9,
-                       linestyle=_dash(dashes.get(key)))
-            ax.annotate(_text(f"{names.get(key, key)} {_c(value):.1f} °C"),
-                        xy=(1.0, _c(value)), xycoords=("axes fraction", "data"), xytext=(3, 0),
-                        textcoords="offset points", fontsize=6.8, va="center")
-    if jump_at_start and _finite(process_temperature_k) and len(celsius):
-        t_p = _c(process_temperature_k)
-        ax.plot([0.0, 0.0], [t_p, celsius[0]], color=style.ACCENT, linewidth=1.8,
-                label=_text("synthesis rise T_{p} → MTSR, taken as instantaneous at t = 0"))
-        ax.plot([0.0], [t_p], marker="s", markersize=4, color=style.INK, linestyle="none")
-    ax.plot(hours, celsius, color=style.INK, linewidth=1.6, label=label)
-    for other_time, other_temperature, text in extra_courses:
-        other_hours, other_celsius = finite_course(other_time, other_temperature)
-        if len(other_hours) >= 2:
-            ax.plot(other_hours, other_celsius, color=style.ACCENT, linewidth=1.4,
-                    linestyle=_dash(figures.DASHED), label=text)
-    if _finite(time_to_maximum_rate_s) and len(hours):
-        x = float(time_to_maximum_rate_s) / SECONDS_PER_HOUR
-        if hours[0] <= x <= hours[-1] * 1.0001:
-            ax.axvline(x, color=style.GREY_MID, linewidth=0.8, linestyle=_dash(figures.DOTTED))
-            ax.annotate(f"maximum rate after {x:.3g} h", xy=(x, 0.04),
-                        xycoords=("data", "axes fraction"), xytext=(-3, 0),
-                        textcoords="offset points", ha="right", fontsize=6.5,
-                        color=style.GREY_DARK)
+    for panel in panels:
+        panel.set_ylabel("temperature [°C]")
+        panel.grid(True, color=style.GREY_LIGHT, linewidth=0.4)
+        for key, value in levels.items():
+            panel.axhline(value, color=style.GREY_DARK, linewidth=0.9,
+                          linestyle=_dash(dashes.get(key)))
+            panel.annotate(_text(f"{names.get(key, key)} {value:.1f} °C"),
+                           xy=(1.0, value), xycoords=("axes fraction", "data"), xytext=(3, 0),
+                           textcoords="offset points", fontsize=6.8, va="center",
+                           annotation_clip=True)
+        if jump_at_start and t_p is not None and len(celsius):
+            panel.plot([0.0, 0.0], [t_p, celsius[0]], color=style.ACCENT, linewidth=1.8,
+                       label=_text("synthesis rise T_{p} → MTSR, taken as instantaneous at "
+                                   "t = 0"))
+            panel.plot([0.0], [t_p], marker="s", markersize=4, color=style.INK,
+                       linestyle="none")
+        panel.plot(hours, celsius, color=style.INK, linewidth=1.6, label=label)
+        for other_time, other_temperature, text in extra_courses:
+            other_hours, other_celsius = finite_course(other_time, other_temperature)
+            if len(other_hours) >= 2:
+                panel.plot(other_hours, other_celsius, color=style.ACCENT, linewidth=1.4,
+                           linestyle=_dash(figures.DASHED), label=text)
+        if barrier_label and "MTT" in levels and len(celsius):
+            reached = np.nonzero(celsius >= levels["MTT"])[0]
+            if len(reached):
+                panel.plot([hours[reached[0]], hours[-1]], [levels["MTT"]] * 2,
+                           color=style.ACCENT, linewidth=2.4, linestyle=_dash(figures.DOTTED),
+                           label=barrier_label)
+            else:
+                panel.plot([], [], color=style.ACCENT, linewidth=2.4,
+                           linestyle=_dash(figures.DOTTED), label=barrier_label)
+        if _finite(time_to_maximum_rate_s) and len(hours):
+            x = float(time_to_maximum_rate_s) / SECONDS_PER_HOUR
+            if hours[0] <= x <= hours[-1] * 1.0001:
+                panel.axvline(x, color=style.GREY_MID, linewidth=0.8,
+                              linestyle=_dash(figures.DOTTED))
+                panel.annotate(f"maximum rate after {x:.3g} h", xy=(x, 0.04),
+                               xycoords=("data", "axes fraction"), xytext=(-3, 0),
+                               textcoords="offset points", ha="right", fontsize=6.5,
+                               color=style.GREY_DARK)
+    if use_zoom:
+        panels[1].set_ylim(*zoom_limits)
+    panels[-1].set_xlabel("time after the cooling failure [h]")
     ax.legend(loc="upper left", fontsize=7)
     return figure
 

@@ -222,7 +222,7 @@ def _verdict_block(results, styles):
         # Fail closed (engine): no class is granted; say so where the class would stand.
         number, footnote = "–", "NO CLASS: CANNOT CONCLUDE"
     elif status != "screened":
-        number, footnote = str(klass), "CRUDE ESTIMATE from the DSC onset"
+        number, footnote = str(klass), "AT LEAST: CRUDE ESTIMATE from the DSC onset"
     else:
         number, footnote = str(klass), "of 5 (5 most critical)"
     badge = Table([[_p("CRITICALITY CLASS", styles["class_label"])],
@@ -242,7 +242,7 @@ def _verdict_block(results, styles):
         # The engine's own verdict sentence says what cannot be concluded and what to do.
         lines.append(_p(f"<b>{prose(results.get('verdict', ''))}</b>", styles["verdict"]))
     if klass is not None:
-        qualifier = "" if status == "screened" else " (crude estimate)"
+        qualifier = "" if status == "screened" else " at least: crude estimate"
         lines.append(_p(f"<b>Class {klass}{qualifier}.</b> "
                         f"{prose(results.get('criticality_meaning', ''))}", styles["verdict"]))
     if governing:
@@ -251,9 +251,7 @@ def _verdict_block(results, styles):
         f"<b>Severity:</b> {_level(results, 'severity_4', 'severity')}, from the adiabatic rise "
         f"of the runaway, {format_kelvin(results['runaway_adiabatic_rise_K'])} K.",
         styles["verdict"]))
-    lines.append(_p(
-        f"<b>Probability:</b> {_level(results, 'probability_6', 'probability')}, from TMRad at "
-        f"MTSR, {format_hours(results['tmrad_at_mtsr_h'])} h.", styles["verdict"]))
+    lines.append(_p(_probability_sentence(results), styles["verdict"]))
     basis = ("decomposition kinetics from the case" if results.get("decomposition_basis") ==
              "kinetics" else "CRUDE estimate from the DSC onset only")
     lines.append(_p(f"<b>Basis:</b> {escape(results.get('decomposition_model', ''))} model, "
@@ -338,6 +336,18 @@ def _vessel_summary(vessel, results) -> str:
         return text
     return (f"<b>{name}: {escape(str(stability).upper())}</b> — "
             f"{prose(_strip_prefix(vessel.get('verdict', '')))}")
+
+
+def _probability_sentence(results) -> str:
+    """The probability line of page 1: the level and the TMRad it comes from, or why there is
+    no level (one statement, never a level 'not assessed' next to a TMRad)."""
+    tmr = results.get("tmrad_at_mtsr_h")
+    tmr_text = f"{format_hours(tmr)} h" if isinstance(tmr, (int, float)) else "n/a"
+    if results.get("probability_6") is None:
+        return (f"<b>Probability:</b> no level is granted: without decomposition kinetics the "
+                f"TMRad at MTSR ({tmr_text}) is only a crude estimate from the DSC onset.")
+    return (f"<b>Probability:</b> {_level(results, 'probability_6', 'probability')}, from "
+            f"TMRad at MTSR, {tmr_text}.")
 
 
 def _level(results, detailed_key, coarse_key) -> str:
@@ -466,14 +476,19 @@ SIMULATED_CONTINUING_LABEL = figure_data.SIMULATED_CONTINUING_LABEL
 
 def _course_figure(data, styles, counter):
     """Figure 3 without a simulation: T_p -> MTSR at once, then the adiabatic decomposition."""
-    caption = ("Temperature of the mass after a cooling failure at the worst moment. The "
-               "synthesis rise from T<sub>p</sub> to MTSR is <b>assumed instantaneous at "
-               "t = 0</b> (the accumulated reactant reacts at once, the conservative "
-               "screening assumption); from MTSR the decomposition heats the mass "
-               "adiabatically (no heat losses, φ = 1). Read the time left before the "
-               "runaway accelerates and the temperature it ends at.")
+    caption = ("<b>Unmitigated</b> temperature of the mass after a cooling failure at the worst "
+               "moment: no cooling, no boiling, no relief. The synthesis rise from "
+               "T<sub>p</sub> to MTSR is <b>assumed instantaneous at t = 0</b> (the accumulated "
+               "reactant reacts at once, the conservative screening assumption); from MTSR the "
+               "decomposition heats the mass adiabatically (no heat losses, φ = 1). The thick "
+               "dotted line shows what the barrier at the MTT must do: hold the mass at the MTT "
+               "by boiling (or relief), with its verdict from the barrier analysis. Read the "
+               "time left before the runaway accelerates and the temperature it ends at; the "
+               "lower panel, where drawn, enlarges the range of T<sub>p</sub>, MTSR, the MTT and "
+               "T<sub>D24</sub>.")
     return [_figure_block(figures.draw(data), next(counter),
-                          "Temperature course after a cooling failure.", caption, styles)]
+                          "Unmitigated temperature course after a cooling failure.", caption,
+                          styles)]
 
 
 def _simulated_course_figure(data, styles, counter):
@@ -488,7 +503,8 @@ def _simulated_course_figure(data, styles, counter):
             return "at the start of the run"
         return f"{format_hours(seconds / 3600.0)} h into the run"
 
-    caption = (f"Temperature of the mass after a cooling failure, from the dynamic simulation of "
+    caption = (f"<b>Unmitigated</b> temperature of the mass after a cooling failure (no "
+               f"cooling, no boiling, no relief), from the dynamic simulation of "
                f"the run (see the simulation block): the failure at the worst time "
                f"({moment(failure)}) with the feed stopped (solid)")
     if data.notes["feed_continuing"]:
@@ -497,9 +513,12 @@ def _simulated_course_figure(data, styles, counter):
     caption += (". The accumulated reactant reacts at the simulated rate, adiabatically from "
                 "the failure on (no heat losses, no evaporation, φ = 1). Read how long the mass "
                 "takes to reach the MTT and T<sub>D24</sub>, and how much worse a feed that is "
-                "not stopped makes it.")
+                "not stopped makes it. The thick dotted line shows what the barrier at the MTT "
+                "must do (hold the mass there by boiling or relief), with its verdict from the "
+                "barrier analysis.")
     return [_figure_block(figures.draw(data), next(counter),
-                          "Temperature course after a cooling failure.", caption, styles)]
+                          "Unmitigated temperature course after a cooling failure.", caption,
+                          styles)]
 
 
 def _semenov_figures(result, styles, counter):
@@ -708,7 +727,8 @@ def _assumptions(result) -> list[str]:
                      "range of the kinetics: the extent of extrapolation cannot be judged.")
     items.append(_not_covered(results))
     items.append("<b>Levels.</b> Severity and probability bands as published in the methods "
-                  "above (bands from memory); the '100 K below the DSC onset' rule of thumb is "
+                  "above (verify the band limits against the source); the '100 K below the DSC onset' "
+                  "rule of thumb is "
                   "shown for information and never used for the verdict.")
     return items
 

@@ -13,7 +13,18 @@ from dataclasses import dataclass
 VERDICT_KEYS = (
     "criticality_class", "severity", "severity_4", "probability", "probability_6",
     "verdict_status", "stability", "synthesis_stability", "mtsr_above_no_return",
-    "barrier_verdict", "decomposition_triggered",
+    "barrier_verdict", "decomposition_triggered", "decomposition_stability",
+    "synthesis_cooling", "mtsr_feed_mode",
+)
+
+#: Unit suffixes of the result keys (JSON keys carry their unit), longest first, with the unit
+#: as printed.
+UNIT_SUFFIXES = (
+    ("_kJ_per_kg", "kJ/kg"), ("_W_per_kg", "W/kg"), ("_W_per_K", "W/K"), ("_W_per_m2K", "W/(m2 K)"),
+    ("_kg_per_h", "kg/h"), ("_m_per_s", "m/s"), ("_kJ_per_mol", "kJ/mol"),
+    ("_mol_per_kg", "mol/kg"), ("_kg_per_m3", "kg/m3"), ("_per_m", "1/m"), ("_degC", "degC"),
+    ("_kW", "kW"), ("_MJ", "MJ"), ("_bar", "bar"), ("_m3", "m3"), ("_m2", "m2"), ("_kg", "kg"),
+    ("_h", "h"), ("_K", "K"),
 )
 #: Relative change below which two numbers count as equal [-] (JSON keeps 10 digits).
 RELATIVE_TOLERANCE = 1e-9
@@ -61,6 +72,77 @@ def flatten_results(results: dict, prefix: str = "") -> dict[str, object]:
         else:
             flat[path] = value
     return flat
+
+
+def split_unit(key: str) -> tuple[str, str]:
+    """``"vessels[R-1].no_return_temperature_degC"`` -> (``"vessels[R-1].no_return_temperature"``,
+    ``"degC"``); the unit is ``""`` for a dimensionless or unknown key.
+
+    Parameters
+    ----------
+    key : str
+        A flattened result key (:func:`flatten_results`); result keys carry their unit.
+
+    Returns
+    -------
+    tuple of str
+        (key without the unit suffix, unit as printed).
+    """
+    for suffix, unit in UNIT_SUFFIXES:
+        if key.endswith(suffix):
+            return key[:-len(suffix)], unit
+    return key, ""
+
+
+def printed(value, unit: str = "") -> str:
+    """A figure as the comparison prints it: temperatures and differences in K with 1 decimal,
+    other numbers with 4 significant digits; a difference that vanishes at this precision is
+    not shown as a change.
+
+    Parameters
+    ----------
+    value : object
+        The figure (number, bool, text, list or None).
+    unit : str
+        Its unit as printed (:func:`split_unit`); ``"degC"`` and ``"K"`` print 1 decimal.
+
+    Returns
+    -------
+    str
+        The printed text.
+    """
+    if value is None:
+        return "-"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, (int, float)):
+        if isinstance(value, int):
+            return str(value)
+        if not math.isfinite(value):
+            return str(value)
+        if unit in ("degC", "K"):
+            text = f"{value:.1f}"
+            return "0.0" if text == "-0.0" else text
+        return f"{value:.4g}"
+    if isinstance(value, (tuple, list)):
+        return f"[{len(value)} items]"
+    return str(value)
+
+
+def shows_a_difference(change: "Change") -> bool:
+    """True unless the change vanishes at the printed precision (:func:`printed`).
+
+    Parameters
+    ----------
+    change : Change
+        A changed result figure.
+
+    Returns
+    -------
+    bool
+    """
+    unit = split_unit(change.key)[1]
+    return printed(change.old, unit) != printed(change.new, unit)
 
 
 def _is_number(value) -> bool:
