@@ -203,3 +203,11 @@ def test_demo_data_headers_are_neutral():
         for vendor_style in ("Instrument;", "Ts/", "DSC/(", "Heat Flow [", "Exo Up",
                              "Sample Temperature"):
             assert vendor_style not in text, (path.name, vendor_style)
+
+
+@pytest.mark.parametrize("path", CASES, ids=[p.name for p in CASES])
+def test_user_facing_method_notes_never_say_from_memory(path):
+    """Method notes cite the published source; an unverified value says "verify against the
+    source" (the provenance detail stays in docs/methods.md and the tests)."""
+    text = _json(path)
+    assert "from memory" not in text
