@@ -220,12 +220,12 @@ def write_limits_csv(data: dict, path, force: bool) -> None:
     import csv
     import io
 
-    from screen.cautions import SHORT_CAUTION
+    from screen.cautions import csv_comment
     from screen.io.fileio import write_atomic
     from screen.report.limits import CSV_COLUMNS, csv_rows
 
     buffer = io.StringIO()
-    buffer.write(f"# {SHORT_CAUTION}\n")
+    buffer.write(csv_comment())
     writer = csv.DictWriter(buffer, fieldnames=CSV_COLUMNS, lineterminator="\n")
     writer.writeheader()
     for row in csv_rows(data):

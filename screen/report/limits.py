@@ -190,7 +190,7 @@ def window_figure(window: dict, vessels_numbered=None, caution: str | None = Non
     vessels_numbered : list of str, optional
         Vessel names in file order (for the V1, V2 labels). [-]
     caution : str, optional
-        A caution line printed under the plot (standalone figure files). [-]
+        Cautions printed under the plot, wrapped (standalone figure files). [-]
 
     Returns
     -------
@@ -203,10 +203,13 @@ def window_figure(window: dict, vessels_numbered=None, caution: str | None = Non
     from screen.report.plot import Axes, add_text
     from screen.report.style import GREY_DARK, INK
 
+    import textwrap
+
     xs, ys = window["x"], window["y"]
     xe, ye = _cell_edges(xs), _cell_edges(ys)
-    height = 300.0 if caution else 285.0
-    bottom = 62.0 if caution else 48.0
+    caution_lines = textwrap.wrap(caution, 150) if caution else []
+    height = 285.0 + 8.0 * len(caution_lines)
+    bottom = 48.0 + 8.0 * len(caution_lines)
     drawing = Drawing(WIDTH, height)
     ax = Axes(drawing, 58.0, bottom, WIDTH - 58.0 - 122.0, height - bottom - 16.0,
               (xe[0], xe[-1]), (ye[0], ye[-1]))
@@ -296,8 +299,8 @@ def window_figure(window: dict, vessels_numbered=None, caution: str | None = Non
     y -= 11.0
     drawing.add(_diamond(left + 6.0, y + 2.0))
     add_text(drawing, left + 16.0, y, "today's values", size=6.3)
-    if caution:
-        add_text(drawing, 4.0, 6.0, caution[:150], size=5.8)
+    for k, line in enumerate(caution_lines):  # the full cautions, never cut
+        add_text(drawing, 4.0, 4.0 + 8.0 * (len(caution_lines) - 1 - k), line, size=5.8)
     return drawing
 
 
@@ -341,7 +344,7 @@ def _any_failing(per_vessel: dict):
 
 def save_window_figure(result, path, force: bool = False) -> None:
     """Write the operating-window figure alone (``.svg`` or ``.pdf``) through the atomic
-    writer, with the caution line under the plot.
+    writer, with the full cautions under the plot.
 
     Parameters
     ----------
@@ -354,7 +357,7 @@ def save_window_figure(result, path, force: bool = False) -> None:
     """
     import os
 
-    from screen.cautions import SHORT_CAUTION
+    from screen.cautions import caution_text
     from screen.errors import OutputError
     from screen.io.fileio import write_atomic
 
@@ -369,7 +372,7 @@ def save_window_figure(result, path, force: bool = False) -> None:
     from screen.report.style import register_fonts
 
     register_fonts()
-    drawing = window_figure(window, [v.name for v in result.case.vessels], SHORT_CAUTION)
+    drawing = window_figure(window, [v.name for v in result.case.vessels], caution_text())
     if extension == ".svg":
         from reportlab.graphics import renderSVG
 
