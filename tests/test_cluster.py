@@ -37,7 +37,7 @@ def cluster():
     from distributed import LocalCluster
 
     with LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                      dashboard_address=None, silence_logs=50) as running:
+                      dashboard_address=":0", silence_logs=50) as running:
         yield running
 
 
