@@ -29,6 +29,8 @@ class textwrap:  # noqa: N801 - the textwrap functions without breaks at hyphens
 
 #: Warnings shown on the first screen (the most severe first; all of them with --detail).
 FIRST_SCREEN_WARNINGS = 3
+#: Length of the first screen the warnings are fitted into [lines].
+FIRST_SCREEN_LINES = 60
 #: Lines per warning on the first screen (the whole text with --detail).
 FIRST_SCREEN_WARNING_LINES = 2
 
@@ -184,7 +186,9 @@ def verdict_headline(r) -> str:
 
 def _governing_line(r) -> str | None:
     governing = r.get("mtsr_governing_degC")
-    if not _number(governing):
+    if r.get("verdict_basis_lines") or not _number(governing):
+        return None  # the basis of the verdict names the governing MTSR
+    if _number(r.get("mtsr_degC")) and governing <= r["mtsr_degC"] + 0.05:
         return None
     text = (f"Governing MTSR {governing:.1f} degC from the "
             f"{r.get('mtsr_governing_basis') or 'simulation'}, higher than the "
@@ -196,8 +200,9 @@ def _governing_line(r) -> str | None:
 
 
 def basis_lines(r, detail: bool = False) -> list[str]:
-    """The basis of the verdict: the stated assumptions (``results.assumptions``), one line
-    each; without them the basis that the figures themselves carry.
+    """The basis of the verdict: on the first screen the lines the analyses chose
+    (``results.verdict_basis_lines``), with ``detail`` every stated assumption
+    (``results.assumptions``); without them the basis that the figures themselves carry.
 
     Parameters
     ----------
@@ -208,6 +213,13 @@ def basis_lines(r, detail: bool = False) -> list[str]:
     """
     lines = ["Basis of the verdict"]
     assumptions = [a for a in r.get("assumptions") or [] if isinstance(a, dict)]
+    short = [str(text) for text in r.get("verdict_basis_lines") or []]
+    if short and not detail:
+        # The few lines the analyses chose for the first screen (at most two lines each).
+        for text in short:
+            wrapped = textwrap.wrap(text, WIDTH - 4, max_lines=2, placeholder=" [...]")
+            lines.extend(("  - " if n == 0 else "    ") + line for n, line in enumerate(wrapped))
+        return lines
     if assumptions:
         for item in assumptions:
             text = item.get("text") or f"{item.get('key')}: {item.get('value')}"
@@ -401,7 +413,7 @@ def analysis_lines(r) -> list[str]:
         reason = re.sub(r"^not assessed:\s*", "", reason).split("; set ")[0]
         out.append(_wrap(f"Evaporative-cooling barrier: not assessed: {reason}.", "- ", "  "))
     pressure = r.get("pressure")
-    if isinstance(pressure, dict) and pressure.get("summary_lines"):
+    if isinstance(pressure, dict) and pressure.get("summary_lines") and not r.get("vessels"):
         totals = [v.get("total_bar") for v in pressure.get("vessels") or []
                   if isinstance(v, dict) and _number(v.get("total_bar"))]
         text = (f"Closed-vessel pressure ({pressure.get('solvent') or 'no solvent'}) at "
@@ -518,10 +530,17 @@ def format_check(data: dict, detail: bool = False, extra_lines=()) -> str:
         lines.extend(extra)
     if extra_lines:
         lines += [""] + list(extra_lines)
+    closing = [""] + caution_lines(data.get("cautions", CAUTIONS))
+    # The warnings take what is left of the first screen: the most severe first, at least one.
+    shown = FIRST_SCREEN_WARNINGS
+    while True:
+        warnings = warning_lines(data, shown)
+        if shown <= 1 or len(lines) + 1 + len(warnings) + len(closing) <= FIRST_SCREEN_LINES:
+            break
+        shown -= 1
     lines.append("")
-    lines.extend(warning_lines(data, FIRST_SCREEN_WARNINGS))
-    lines.append("")
-    lines.extend(caution_lines(data.get("cautions", CAUTIONS)))
+    lines.extend(warnings)
+    lines.extend(closing)
     return "\n".join(lines)
 
 
