@@ -58,7 +58,7 @@ def check_command(case_file, as_json, detail, overrides, pdf_path, force, sample
     if pdf_path:
         from screen.report import check_output_path
 
-        check_output_path(str(pdf_path), force, inputs=[case_file])  # fail before the computation, not after it
+        check_output_path(str(pdf_path), force, inputs=[case_file])  # fail before computing
     result = run_check(case_file, overrides)
     if samples is not None:
         from screen.runs.uncertainty import add_uncertainty
@@ -69,11 +69,12 @@ def check_command(case_file, as_json, detail, overrides, pdf_path, force, sample
 
         add_limits(result.case, result)
     data = result.to_json_dict(generated_at=timestamp())
+    pdf_notes: list[str] = []
     if pdf_path:
         from screen.report import write_report
 
         write_report(result, pdf_path, force=force, generated_at=data["generated_at"],
-                     inputs=[case_file])
+                     inputs=[case_file], notes=pdf_notes)
     if as_json:
         click.echo(json.dumps(data, indent=2, ensure_ascii=False))
     else:
@@ -87,4 +88,6 @@ def check_command(case_file, as_json, detail, overrides, pdf_path, force, sample
         click.echo(format_check(data, detail=detail, extra_lines=extra))
         if pdf_path:
             click.echo(f"\nPDF written to {pdf_path}")
+            for note in pdf_notes:  # text the PDF fonts cannot draw as written
+                click.echo(f"PDF note: {note}")
 

@@ -90,6 +90,7 @@ def report_command(case_file, output, force, overrides, since_path, with_limits,
 
             raise CaseError("--window needs --limits", key="--window")
         steps = 3 if since_path else 2
+        notes: list[str] = []
         with ProgressBar(steps, "Report", unit="steps") as bar:
             since = None
             if since_path:
@@ -103,11 +104,13 @@ def report_command(case_file, output, force, overrides, since_path, with_limits,
                 result = run_check(case_file, overrides)
             bar.advance()
             pages = write_report(result, output, force=force, generated_at=timestamp(),
-                                 since=since, inputs=inputs)
+                                 since=since, inputs=inputs, notes=notes)
             bar.advance()
         klass = result.results.get("criticality_class")
         verdict = "no class: cannot conclude" if klass is None else f"criticality class {klass}"
         click.echo(f"PDF written to {output} ({pages} pages; {verdict}; "
                    f"screening aid only)")
+        for note in notes:  # text the PDF fonts cannot draw as written
+            click.echo(f"PDF note: {note}")
 
     run()

@@ -17,6 +17,7 @@ column or row, and the fix. Values are returned in SI: s, K, K/s, kg, W/kg, J/kg
 
 from __future__ import annotations
 
+import csv
 import math
 import re
 from dataclasses import dataclass, field
@@ -172,9 +173,33 @@ class _Table:
 
 
 def _split(line, separator):
+    """Fields of one line: standard CSV quoting (``"Heat flow, exo down (mW/mg)"``, doubled
+    quotes inside a quoted field) as written by Python's csv module, pandas and spreadsheets."""
     if separator == " ":
         return line.split()
-    return [f.strip().strip('"').strip("'").strip() for f in line.split(separator)]
+    try:
+        fields = next(csv.reader([line], delimiter=separator, quotechar='"',
+                                 skipinitialspace=True, strict=True))
+    except (csv.Error, StopIteration):  # not valid CSV with this separator: plain split
+        fields = [f.strip().strip('"') for f in line.split(separator)]
+    return [f.strip().strip("'").strip() for f in fields]
+
+
+def _check_quoting(path, numbered_lines, separator) -> None:
+    """Raise DataFileError naming the first line whose quotes do not make a valid CSV record."""
+    if separator == " ":
+        return
+    for number, line in numbered_lines:
+        if '"' not in line:
+            continue
+        try:
+            next(csv.reader([line], delimiter=separator, quotechar='"', skipinitialspace=True,
+                            strict=True))
+        except csv.Error as exc:
+            raise DataFileError(
+                f"line {number}: the quotes do not form a valid CSV field ({exc}); a quoted "
+                f"field starts and ends with \" and a quote inside it is doubled (\"\")",
+                path=str(path)) from None
 
 
 def _is_number(text, decimal_comma):
@@ -272,6 +297,7 @@ def _read_table(path):
             path=str(path),
         )
     separator, comma, _ = best
+    _check_quoting(path, candidates, separator)  # a broken quote, not a missing header
     # decimal comma only if a number actually uses one
     first_numeric = None
     for index, (number, line) in enumerate(candidates):
@@ -718,6 +744,7 @@ def read_peak_table(path):
                             "peak_temperature_degC' and one row per run", path=str(path))
     header_line, header_text = lines[0]
     separator = ";" if header_text.count(";") >= 1 else ("\t" if "\t" in header_text else ",")
+    _check_quoting(path, lines, separator)
     header = [h.strip().strip('"') for h in _split(header_text, separator)]
     lookup = {h.lower(): i for i, h in enumerate(header)}
     accepted = PEAK_COLUMNS_REQUIRED + PEAK_COLUMNS_OPTIONAL + PEAK_COLUMNS_TEXT

@@ -45,7 +45,7 @@ def _default_timestamp() -> str:
 
 
 def write_report(result, path, force: bool = False, generated_at: str | None = None,
-                 since: dict | None = None, inputs=()) -> int:
+                 since: dict | None = None, inputs=(), notes: list | None = None) -> int:
     """Write the PDF screening summary of ``result`` to ``path``.
 
     The PDF is laid out in memory, written to a temporary file in the target directory and
@@ -66,6 +66,9 @@ def write_report(result, path, force: bool = False, generated_at: str | None = N
         An earlier JSON result (``ScreeningResult.to_json_dict``) for the "changes since" table.
     inputs : iterable of str or path-like
         Files the command read (case, earlier result); the PDF is never written over one.
+    notes : list, optional
+        Receives one line per kind of text that could not be drawn as written (characters
+        without a glyph, unjoined Arabic letters); the PDF itself says so on page 1 too.
 
     Returns
     -------
@@ -90,5 +93,9 @@ def write_report(result, path, force: bool = False, generated_at: str | None = N
 
     buffer = io.BytesIO()
     pages = build_pdf(result, data, buffer, since=since)
+    if notes is not None:
+        from screen.report.text import notes as text_notes
+
+        notes.extend(text_notes())
     write_atomic(path, buffer.getvalue(), force=force, inputs=inputs)
     return pages

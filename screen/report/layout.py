@@ -13,14 +13,17 @@ SUBSCRIPT = '<sub rise="28%">'
 
 
 def typeset(text: str) -> str:
-    """Paragraph markup with the report's subscript setting.
+    """Paragraph markup with the report's subscript setting, drawable by the report fonts
+    (right-to-left words ordered, missing glyphs as codes: :mod:`screen.report.text`).
 
     Parameters
     ----------
     text : str
         Paragraph markup.
     """
-    return str(text).replace("<sub>", SUBSCRIPT)
+    from screen.report.text import drawable
+
+    return drawable(str(text).replace("<sub>", SUBSCRIPT), markup=True)
 
 
 def paragraph(text, style):
@@ -107,7 +110,11 @@ def table(rows, widths, header=True, zebra=True, font_size=8, align_right_from=N
     from reportlab.lib import colors
     from reportlab.platypus import Table, TableStyle
 
-    result = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
+    # splitInRow: a row taller than a page (a very long text value) continues on the next page.
+    from screen.report.text import drawable
+
+    rows = [[drawable(cell) if isinstance(cell, str) else cell for cell in row] for row in rows]
+    result = Table(rows, colWidths=widths, repeatRows=1 if header else 0, splitInRow=1)
     commands = [
         ("FONT", (0, 0), (-1, -1), FONT, font_size),
         ("TEXTCOLOR", (0, 0), (-1, -1), colors.HexColor(INK)),

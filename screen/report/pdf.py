@@ -172,8 +172,12 @@ def _canvas_class(header_text: str, footer_left: str):
 
 def _title_block(result, data, styles):
     case = data["case"]
+    title = case["title"]
+    if len(title) > TITLE_SHOWN_CHARS:  # the whole title: PDF properties and inputs table
+        title = (_shorten(title, TITLE_SHOWN_CHARS) + f" (title of {len(title)} characters "
+                 f"shortened; in full in the inputs table and the PDF properties)")
     story = [_p(REPORT_TITLE, styles["title"]),
-             _p(escape(case["title"]), styles["subtitle"])]
+             _p(escape(title), styles["subtitle"])]
     section = result.case.sections["case"]
     meta = [f"Revision <b>{escape(case.get('revision') or 'not given')}</b>"]
     if section.get("date"):
@@ -867,14 +871,17 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
     from reportlab.lib.pagesizes import A4
     from reportlab.platypus import CondPageBreak, SimpleDocTemplate, Spacer
 
+    from screen.report.text import drawable, notes, reset_notes
+
     register_fonts()
+    reset_notes()
     styles = paragraph_styles()
     results = result.results
     case = data["case"]
     revision = f" · rev. {case['revision']}" if case.get("revision") else ""
     header = (f"{data['tool']['name']} {data['tool']['version']} · {REPORT_TITLE} · "
               f"SCREENING AID ONLY: a qualified process-safety review decides")
-    footer = _shorten(f"{case['title']}{revision}", 95)
+    footer = _shorten(drawable(f"{case['title']}{revision}"), 95)
     document = SimpleDocTemplate(
         stream, pagesize=A4, leftMargin=MARGIN_SIDE, rightMargin=MARGIN_SIDE,
         topMargin=MARGIN_TOP, bottomMargin=MARGIN_BOTTOM, title=f"{REPORT_TITLE}: {case['title']}",
@@ -883,6 +890,7 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
     counter = FigureCounter()
     story = []
     story.extend(_title_block(result, data, styles))
+    title_end = len(story)
     story.append(_caution_block(result, styles))
     story.append(Spacer(1, 8))
     story.append(_p("Verdict", styles["h1"]))
@@ -900,9 +908,16 @@ def build_pdf(result, data: dict, stream, since=None) -> int:
     story.extend(_inputs_section(result, data, styles))
     story.append(Spacer(1, 6))
     story.extend(_traceability_section(result, data, styles, since))
+    for position, text in enumerate(notes()):  # never silent boxes: say what was replaced
+        story.insert(title_end + position, _p(f"<b>Text note:</b> {escape(text)}",
+                                              styles["small"]))
     canvas_class = _canvas_class(header, footer)
     document.build(story, canvasmaker=canvas_class)
     return document.page
+
+
+#: Longest case title printed under the report title [characters] (design: three lines).
+TITLE_SHOWN_CHARS = 240
 
 
 def _shorten(text: str, length: int) -> str:

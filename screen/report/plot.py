@@ -104,6 +104,9 @@ def add_text(group, x, y, text, size=7.0, anchor="start", color=INK, bold=False,
     """
     from reportlab.graphics.shapes import Group, Rect, String
 
+    from screen.report.text import drawable
+
+    text = drawable(text)  # right-to-left order, codes for missing glyphs
     width = text_width(text, size, bold)
     dx = {"start": 0.0, "middle": -width / 2.0, "end": -width}[anchor]
     dy = {"baseline": 0.0, "middle": -0.35 * size, "top": -0.78 * size,

@@ -99,6 +99,14 @@ MIN_SAMPLES = 10
 MAX_SAMPLES = 5_000_000
 #: Samples evaluated per block: bounds the memory and paces the progress bar.
 CHUNK_SAMPLES = 10_000
+#: Samples drawn and summarised per statistics block [-] (design: about 250 MB at 500,000
+#: samples). A run of at most this many samples keeps every sample (results exactly as from
+#: one array); a longer run is drawn block by block: counts, probabilities, means and standard
+#: deviations over all samples, percentiles and rank correlations from a uniform random
+#: subsample of RESERVOIR_SAMPLES (see :func:`run_monte_carlo`).
+BLOCK_SAMPLES = 500_000
+#: Size of the uniform random subsample kept for percentiles and rank correlations [-].
+RESERVOIR_SAMPLES = 500_000
 #: Relative agreement required between the vectorised nominal figures and the scalar engine.
 NOMINAL_TOLERANCE = 1e-6
 
@@ -211,7 +219,7 @@ def collect_inputs(case):
     return entries, correlation, not_propagated
 
 
-def draw_samples(inputs, samples: int, seed: int, correlation=None):
+def draw_samples(inputs, samples: int, seed: int, correlation=None, rng=None):
     """Samples of every target of the uncertain inputs.
 
     One row of independent standard normals per input, drawn in the order of ``inputs`` from
@@ -230,6 +238,8 @@ def draw_samples(inputs, samples: int, seed: int, correlation=None):
         Seed of the random generator (>= 0). [-]
     correlation : float, optional
         Correlation of E and ln A. [-]
+    rng : numpy.random.Generator, optional
+        Generator to draw from (a block of a longer run); default ``default_rng(seed)``.
 
     Returns
     -------
@@ -239,7 +249,8 @@ def draw_samples(inputs, samples: int, seed: int, correlation=None):
         Input key as written -> the array of its first target (for the sensitivity ranking).
         [SI unit of the input]
     """
-    rng = np.random.default_rng(seed)
+    if rng is None:
+        rng = np.random.default_rng(seed)
     normals = rng.standard_normal((len(inputs), samples))
     if correlation is not None:
         rows = {target: index for index, entry in enumerate(inputs) for target in entry.targets}
@@ -694,20 +705,54 @@ def _correlation_or_none(value):
     return value if np.isfinite(value) else None
 
 
-def _spread(values, scale=1.0, offset=0.0, undefined=None):
+def _substituted(values, undefined=None):
+    values = np.asarray(values, dtype=float)
+    if undefined is not None:
+        values = np.where(np.isnan(values), undefined, values)
+    return values
+
+
+def _moments(values) -> dict:
+    """Count, mean, standard deviation (ddof 1) and sum of squared deviations of a sample."""
+    n = int(values.size)
+    mean = float(values.mean())
+    std = float(values.std(ddof=1)) if n > 1 else 0.0
+    return {"n": n, "mean": mean, "std": std, "m2": float(((values - mean) ** 2).sum())}
+
+
+def _merge_moments(a: dict, b: dict) -> dict:
+    """Moments of two samples together (Chan, Golub & LeVeque, "Algorithms for computing the
+    sample variance", Am. Stat. 37 (1983) 242-247, pairwise update)."""
+    n = a["n"] + b["n"]
+    delta = b["mean"] - a["mean"]
+    mean = a["mean"] + delta * b["n"] / n
+    m2 = a["m2"] + b["m2"] + delta * delta * a["n"] * b["n"] / n
+    return {"n": n, "mean": mean, "std": math.sqrt(m2 / (n - 1)) if n > 1 else 0.0, "m2": m2}
+
+
+def _spread_tally(values, undefined=None) -> dict:
+    """What :func:`_spread` needs from all samples: undefined count, finiteness, moments."""
+    raw = np.asarray(values, dtype=float)
+    entry = {"undefined": int(np.count_nonzero(np.isnan(raw)))}
+    values = _substituted(raw, undefined)
+    entry["finite"] = bool(np.isfinite(values).all())
+    entry["moments"] = _moments(values) if entry["finite"] else None
+    return entry
+
+
+def _spread(values, scale=1.0, offset=0.0, undefined=None, tally=None):
     """p5, p50, p95, mean, std of samples; undefined samples rank as the most critical (-inf).
 
     With any non-finite sample the percentiles use the inverted-CDF definition (no interpolation
-    across infinity) and mean and std are None.
+    across infinity) and mean and std are None. ``tally`` (:func:`_spread_tally` over all
+    samples) supplies the counts, mean and std when ``values`` is a subsample.
     """
-    values = np.asarray(values, dtype=float)
-    count_undefined = int(np.count_nonzero(np.isnan(values)))
-    if undefined is not None:
-        values = np.where(np.isnan(values), undefined, values)
-    finite = np.isfinite(values)
-    if finite.all():
+    if tally is None:
+        tally = _spread_tally(values, undefined)
+    values = _substituted(values, undefined)
+    if tally["finite"]:
         p5, p50, p95 = np.percentile(values, [5.0, 50.0, 95.0])
-        mean, std = float(values.mean()), float(values.std(ddof=1)) if values.size > 1 else 0.0
+        mean, std = tally["moments"]["mean"], tally["moments"]["std"]
     else:
         p5, p50, p95 = np.percentile(values, [5.0, 50.0, 95.0], method="inverted_cdf")
         mean = std = None
@@ -719,9 +764,100 @@ def _spread(values, scale=1.0, offset=0.0, undefined=None):
     out = {"p5": convert(p5), "p50": convert(p50), "p95": convert(p95),
            "mean": None if mean is None else mean / scale - offset,
            "std": None if std is None else std / scale}
-    if count_undefined:
-        out["undefined_samples"] = count_undefined
+    if tally["undefined"]:
+        out["undefined_samples"] = tally["undefined"]
     return out
+
+
+#: Figures summarised by percentiles: name in ``MonteCarloRun.figures`` (or "onset_margin",
+#: TD24 - MTSR) -> value given to an undefined (NaN) sample (None: kept as NaN).
+_SPREAD_FIGURES = {"mtsr": None, "td24": -np.inf, "tmrad_at_mtsr": 0.0, "onset_margin": -np.inf,
+                   "synthesis_rise": None, "decomposition_rise": None}
+_VESSEL_SPREADS = {"critical_coolant_temperature": -np.inf, "coolant_margin": -np.inf}
+
+
+def _spread_values(figures, name):
+    if name == "onset_margin":
+        return figures["td24"] - figures["mtsr"]
+    return figures[name]
+
+
+def _tally(figures, input_by_key, inputs, vessel_count, crit) -> dict:
+    """Counts, level tallies and moments of one block of samples (merged by
+    :func:`_merge_tallies`; a run of one block uses it as it is)."""
+    klass = figures["criticality_class"]
+    td24, mtsr, mtt = figures["td24"], figures["mtsr"], figures["mtt"]
+    no_td24 = np.isnan(td24)
+    tmr = figures["tmrad_at_mtsr"]
+    tmr_undefined = np.isnan(tmr)
+    tmr_hours = np.where(tmr_undefined, 0.0, tmr / SECONDS_PER_HOUR)  # fail closed: frequent
+    severity_codes = crit.severity_codes(figures["runaway_rise"])
+    probability_codes = crit.probability_codes(tmr_hours)
+    tally = {
+        "n": int(klass.size),
+        "class_counts": np.bincount(klass, minlength=6)[1:6],
+        "no_td24": int(np.count_nonzero(no_td24)),
+        "mtsr_at_or_above_td24": int(np.count_nonzero(
+            no_td24 | (mtsr >= np.where(no_td24, np.inf, td24)))),
+        "mtsr_at_or_above_mtt": int(np.count_nonzero(mtsr >= mtt)),
+        "tmr_undefined": int(np.count_nonzero(tmr_undefined)),
+        "levels": {
+            "severity": np.bincount(severity_codes, minlength=len(crit.SEVERITY_4_LEVELS)),
+            "severity_3": np.bincount(np.minimum(severity_codes, 2),  # the two highest merge
+                                      minlength=len(crit.SEVERITY_3_LEVELS)),
+            "probability": np.bincount(probability_codes,
+                                       minlength=len(crit.PROBABILITY_6_LEVELS)),
+            "probability_3": np.bincount(np.array(crit.PROBABILITY_3_FROM_6)[probability_codes],
+                                         minlength=len(crit.PROBABILITY_3_LEVELS)),
+        },
+        "spreads": {name: _spread_tally(_spread_values(figures, name), undefined)
+                    for name, undefined in _SPREAD_FIGURES.items()},
+        "inputs": {entry.key: _moments(np.asarray(input_by_key[entry.key], dtype=float))
+                   for entry in inputs},
+        "vessels": [],
+    }
+    for index in range(1, vessel_count + 1):
+        key = f"vessel.{index}."
+        tally["vessels"].append({
+            "no_stable_point": int(np.count_nonzero(figures[key + "no_stable_point"])),
+            "mtsr_above_no_return": int(np.count_nonzero(figures[key + "mtsr_above_no_return"])),
+            "undefined": int(np.count_nonzero(figures[key + "undefined"])),
+            "spreads": {name: _spread_tally(figures[key + name], undefined)
+                        for name, undefined in _VESSEL_SPREADS.items()},
+        })
+    return tally
+
+
+def _merge_spread(a, b):
+    finite = a["finite"] and b["finite"]
+    return {"undefined": a["undefined"] + b["undefined"], "finite": finite,
+            "moments": _merge_moments(a["moments"], b["moments"]) if finite else None}
+
+
+def _add_counts(a, b):
+    length = max(len(a), len(b))
+    return np.pad(a, (0, length - len(a))) + np.pad(b, (0, length - len(b)))
+
+
+def _merge_tallies(a: dict, b: dict) -> dict:
+    """The tally of two blocks together (counts added, moments merged exactly)."""
+    merged = {key: a[key] + b[key] for key in ("n", "no_td24", "mtsr_at_or_above_td24",
+                                               "mtsr_at_or_above_mtt", "tmr_undefined")}
+    merged["class_counts"] = a["class_counts"] + b["class_counts"]
+    merged["levels"] = {name: _add_counts(a["levels"][name], b["levels"][name])
+                        for name in a["levels"]}
+    merged["spreads"] = {name: _merge_spread(a["spreads"][name], b["spreads"][name])
+                         for name in a["spreads"]}
+    merged["inputs"] = {key: _merge_moments(a["inputs"][key], b["inputs"][key])
+                        for key in a["inputs"]}
+    merged["vessels"] = []
+    for first, second in zip(a["vessels"], b["vessels"], strict=True):
+        entry = {key: first[key] + second[key]
+                 for key in ("no_stable_point", "mtsr_above_no_return", "undefined")}
+        entry["spreads"] = {name: _merge_spread(first["spreads"][name], second["spreads"][name])
+                            for name in first["spreads"]}
+        merged["vessels"].append(entry)
+    return merged
 
 
 def _fraction(mask, total):
@@ -758,7 +894,13 @@ def _format_probability(p: float) -> str:
 
 @dataclass
 class MonteCarloRun:
-    """Samples of the inputs and of the figures (arrays over the samples)."""
+    """Samples of the inputs and of the figures (arrays over the samples).
+
+    ``input_values``, ``input_by_key`` and ``figures`` hold every sample when ``samples`` is at
+    most :data:`BLOCK_SAMPLES`, otherwise the uniform random subsample of
+    :data:`RESERVOIR_SAMPLES` kept for percentiles and rank correlations. ``tally`` holds the
+    counts, means and standard deviations over all samples (:func:`_tally`).
+    """
 
     samples: int
     seed: int
@@ -768,11 +910,57 @@ class MonteCarloRun:
     input_values: dict
     input_by_key: dict
     figures: dict
+    tally: dict = field(default_factory=dict)
+
+
+def _evaluate(input_values, base, context, size, chunk, crit, dm, advance, executor=None):
+    """Figures of ``size`` samples, composed ``chunk`` samples at a time (on ``executor``
+    when given: all chunks submitted at once, collected in order)."""
+    pieces: list[dict] = []
+    chunks = []
+    for start in range(0, size, max(1, int(chunk))):
+        stop = min(size, start + int(chunk))
+        merged = dict(base)
+        for key, array in input_values.items():
+            merged[key] = array[start:stop]
+        chunks.append((merged, stop - start))
+    pending = ([executor.submit(compose_block, merged, context, count)
+                for merged, count in chunks] if executor is not None else None)
+    for index, (merged, count) in enumerate(chunks):
+        if pending is None:
+            pieces.append(_compose(merged, context, count, crit, dm))
+        else:
+            pieces.append(pending[index].result())
+        advance(count)
+    return {key: np.concatenate([piece[key] for piece in pieces]) for key in pieces[0]}
+
+
+def _keep_smallest(keys, arrays, size):
+    """The ``size`` entries with the smallest keys (bottom-k: a uniform sample without
+    replacement when the keys are independent uniform numbers)."""
+    if keys.size <= size:
+        return keys, arrays
+    chosen = np.argpartition(keys, size - 1)[:size]
+    chosen.sort()  # keep the order of drawing
+    return keys[chosen], {name: array[chosen] for name, array in arrays.items()}
 
 
 def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = False,
-                    chunk: int = CHUNK_SAMPLES, executor=None) -> MonteCarloRun:
+                    chunk: int = CHUNK_SAMPLES, executor=None, block: int | None = None,
+                    reservoir: int | None = None) -> MonteCarloRun:
     """Draw the uncertain inputs and evaluate the figures for every sample.
+
+    Memory stays bounded whatever the number of samples: the samples are drawn and evaluated in
+    statistics blocks of ``block`` samples. Up to one block, every sample is kept and the
+    summary is computed from the whole arrays. Beyond it, each block is drawn from the same
+    generator in turn (``default_rng(seed)``; the random numbers of a block are not those of a
+    single draw of all samples), then reduced: counts of classes, levels and events, and the
+    sums for means and standard deviations (merged exactly, Chan, Golub & LeVeque 1983) cover
+    all samples; percentiles and rank correlations come from a uniform random subsample of
+    ``reservoir`` samples without replacement, chosen by bottom-k selection on independent
+    uniform keys (a reservoir: the samples with the ``reservoir`` smallest keys of a second
+    generator seeded from ``seed``). The sampling error this adds to a percentile p is about
+    sqrt(p (1 - p) / reservoir) in probability (5e-4 for p5 at 500,000).
 
     Parameters
     ----------
@@ -794,6 +982,11 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
         with ``result()`` (a ``dask.distributed.Client``, a :mod:`concurrent.futures`
         executor). The samples are drawn here, so the numbers do not depend on where the blocks
         run. Default: one after the other in this process.
+    block : int, optional
+        Samples per statistics block; default :data:`BLOCK_SAMPLES`. [-]
+    reservoir : int, optional
+        Size of the subsample for percentiles and rank correlations; default
+        :data:`RESERVOIR_SAMPLES`. [-]
 
     Returns
     -------
@@ -811,46 +1004,68 @@ def run_monte_carlo(case, results, samples: int, seed: int, progress: bool = Fal
     if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
         raise CaseError(f"got seed {seed!r}; the seed is an integer >= 0", "--seed", case.path)
     samples, seed = int(samples), int(seed)
+    block = max(1, int(block or BLOCK_SAMPLES))
+    reservoir = max(MIN_SAMPLES, int(reservoir or RESERVOIR_SAMPLES))
     inputs, correlation, not_propagated = collect_inputs(case)
     if not inputs:
         raise CaseError("the case gives no uncertainty to propagate: write a value with its "
                         "standard uncertainty (\"135 ± 8 kJ/mol\") or add an [uncertainty] "
                         "section (see docs/uncertainty.md)", "--uncertainty", case.path)
-    input_values, input_by_key = draw_samples(inputs, samples, seed, correlation)
 
     from screen.models import criticality as crit
     from screen.models import decomposition as dm
 
     context, base = _context(case, results)
     _check_nominal(case, results, context, base, crit, dm)
-    pieces: list[dict] = []
-    starts = range(0, samples, max(1, int(chunk)))
     from screen.progress import ProgressBar
 
     # A callable receives (samples done, samples); True draws a bar on a terminal.
     callback = progress if callable(progress) else None
-    blocks = []
-    for start in starts:
-        stop = min(samples, start + int(chunk))
-        merged = dict(base)
-        for key, array in input_values.items():
-            merged[key] = array[start:stop]
-        blocks.append((stop, merged))
+    done = [0]
     with ProgressBar(samples, "Monte Carlo", enabled=progress is True, unit="samples") as bar:
-        if executor is not None:  # all blocks submitted at once, collected in order
-            pending = [executor.submit(compose_block, merged, context, stop - start)
-                       for (stop, merged), start in zip(blocks, starts, strict=True)]
-        for index, ((stop, merged), start) in enumerate(zip(blocks, starts, strict=True)):
-            if executor is None:
-                pieces.append(_compose(merged, context, stop - start, crit, dm))
-            else:
-                pieces.append(pending[index].result())
-            bar.update(stop)
+        def advance(count):
+            done[0] += count
+            bar.update(done[0])
             if callback is not None:
-                callback(stop, samples)
-    figures = {key: np.concatenate([piece[key] for piece in pieces]) for key in pieces[0]}
-    return MonteCarloRun(samples, seed, inputs, correlation, not_propagated, input_values,
-                         input_by_key, figures)
+                callback(done[0], samples)
+
+        if samples <= block:  # one block: every sample kept, results as from one array
+            input_values, input_by_key = draw_samples(inputs, samples, seed, correlation)
+            figures = _evaluate(input_values, base, context, samples, chunk, crit, dm, advance,
+                                executor)
+            tally = _tally(figures, input_by_key, inputs, len(context.vessels), crit)
+            return MonteCarloRun(samples, seed, inputs, correlation, not_propagated,
+                                 input_values, input_by_key, figures, tally)
+        rng = np.random.default_rng(seed)
+        key_rng = np.random.default_rng([seed, 1])  # the reservoir's keys: a second stream
+        kept_keys = np.empty(0)
+        kept: dict[str, np.ndarray] = {}
+        tally = None
+        for start in range(0, samples, block):
+            size = min(block, samples - start)
+            input_values, input_by_key = draw_samples(inputs, size, seed, correlation, rng=rng)
+            figures = _evaluate(input_values, base, context, size, chunk, crit, dm, advance,
+                                executor)
+            part = _tally(figures, input_by_key, inputs, len(context.vessels), crit)
+            tally = part if tally is None else _merge_tallies(tally, part)
+            arrays = {f"figure:{k}": v for k, v in figures.items()}
+            arrays.update({f"target:{k}": v for k, v in input_values.items()})
+            arrays.update({f"input:{k}": v for k, v in input_by_key.items()})
+            del figures, input_values, input_by_key
+            keys = key_rng.random(size)
+            if kept:
+                keys = np.concatenate([kept_keys, keys])
+                arrays = {name: np.concatenate([kept[name], array])
+                          for name, array in arrays.items()}
+            kept_keys, kept = _keep_smallest(keys, arrays, reservoir)
+            del arrays, keys
+
+    def part_of(prefix):
+        return {name[len(prefix):]: array for name, array in kept.items()
+                if name.startswith(prefix)}
+
+    return MonteCarloRun(samples, seed, inputs, correlation, not_propagated,
+                         part_of("target:"), part_of("input:"), part_of("figure:"), tally)
 
 
 def compose_block(values, context, size: int) -> dict:
@@ -971,37 +1186,32 @@ def summarise(run: MonteCarloRun, case, results):
     from screen.models import criticality as crit
 
     n = run.samples
-    fig = run.figures
-    klass = fig["criticality_class"]
-    counts = np.bincount(klass, minlength=6)[1:6]
+    fig = run.figures  # every sample, or the uniform subsample of a long run
+    tally = run.tally or _tally(fig, run.input_by_key, run.inputs, len(case.vessels), crit)
+    counts = tally["class_counts"]
     class_probabilities = {str(k): float(counts[k - 1]) / n for k in range(1, 6)}
     nominal_class = int(results.get("criticality_class_computed", results["criticality_class"]))
     crude = results.get("decomposition_basis") == "onset-estimate"
     most_probable = int(np.argmax(counts)) + 1
-    td24, mtsr, mtt = fig["td24"], fig["mtsr"], fig["mtt"]
-    no_td24 = np.isnan(td24)
+    td24, mtsr = fig["td24"], fig["mtsr"]
     tmr = fig["tmrad_at_mtsr"]
-    tmr_undefined = np.isnan(tmr)
-    tmr_hours = np.where(tmr_undefined, 0.0, tmr / SECONDS_PER_HOUR)  # fail closed: frequent
+    tmr_undefined_count = tally["tmr_undefined"]
     margin = td24 - mtsr
-    severity_codes = crit.severity_codes(fig["runaway_rise"])
-    severity3 = np.minimum(severity_codes, 2)  # three levels merge the two highest
-    probability_codes = crit.probability_codes(tmr_hours)
-    probability3 = np.array(crit.PROBABILITY_3_FROM_6)[probability_codes]
 
-    def level_probabilities(codes, names):
-        tally = np.bincount(codes, minlength=len(names))
-        return {name: float(tally[i]) / n for i, name in enumerate(names)}
+    def level_probabilities(name, names):
+        levels = tally["levels"][name]
+        return {label: float(levels[i]) / n for i, label in enumerate(names)}
 
     p_class_4_5 = (counts[3] + counts[4]) / n
-    p_td24 = _fraction(no_td24 | (mtsr >= np.where(no_td24, np.inf, td24)), n)
-    p_mtt = _fraction(mtsr >= mtt, n)
+    p_td24 = tally["mtsr_at_or_above_td24"] / n
+    p_mtt = tally["mtsr_at_or_above_mtt"] / n
 
     # Sensitivity: rank correlation of each input with the margin and with TMRad at MTSR,
     # undefined outputs ranked as the most critical; every column is ranked once.
     matrix = rank_correlation_matrix(np.column_stack(
         [run.input_by_key[entry.key] for entry in run.inputs]
-        + [np.where(np.isnan(margin), -np.inf, margin), np.where(tmr_undefined, -np.inf, tmr)]))
+        + [np.where(np.isnan(margin), -np.inf, margin),
+           np.where(np.isnan(tmr), -np.inf, tmr)]))
     ranking = []
     for index, entry in enumerate(run.inputs):
         ranking.append({
@@ -1015,21 +1225,22 @@ def summarise(run: MonteCarloRun, case, results):
     vessels = []
     for index, vessel in enumerate(case.vessels, start=1):
         key = f"vessel.{index}."
+        counted = tally["vessels"][index - 1]
         vessels.append({
             "name": vessel.name,
             "critical_coolant_temperature_degC": _spread(
                 fig[key + "critical_coolant_temperature"], offset=ZERO_CELSIUS,
-                undefined=-np.inf),
-            "coolant_margin_K": _spread(fig[key + "coolant_margin"], undefined=-np.inf),
-            "probability_no_stable_point": _fraction(fig[key + "no_stable_point"], n),
-            "probability_mtsr_at_or_above_no_return": _fraction(
-                fig[key + "mtsr_above_no_return"], n),
-            "undefined_samples": int(np.count_nonzero(fig[key + "undefined"])),
+                undefined=-np.inf, tally=counted["spreads"]["critical_coolant_temperature"]),
+            "coolant_margin_K": _spread(fig[key + "coolant_margin"], undefined=-np.inf,
+                                        tally=counted["spreads"]["coolant_margin"]),
+            "probability_no_stable_point": counted["no_stable_point"] / n,
+            "probability_mtsr_at_or_above_no_return": counted["mtsr_above_no_return"] / n,
+            "undefined_samples": counted["undefined"],
         })
 
     inputs = []
     for entry in run.inputs:
-        x = run.input_by_key[entry.key]
+        moments = tally["inputs"][entry.key]
         first = entry.marginals[0]
         inputs.append({
             "key": entry.key,
@@ -1039,11 +1250,11 @@ def summarise(run: MonteCarloRun, case, results):
             "applies_to": list(entry.targets),
             "nominal_si": first.nominal,
             "unit_si": entry.unit,
-            "sample_mean_si": float(np.mean(x)),
-            "sample_std_si": float(np.std(x, ddof=1)),
+            "sample_mean_si": moments["mean"],
+            "sample_std_si": moments["std"],
         })
 
-    count_td24 = int(np.count_nonzero(no_td24 | (mtsr >= np.where(no_td24, np.inf, td24))))
+    count_td24 = tally["mtsr_at_or_above_td24"]
     nominal_phrase = _probability_phrase(f"class {nominal_class} with probability",
                                          int(counts[nominal_class - 1]), n, " ")
     high_phrase = _probability_phrase("P(class >= 4)", int(counts[3] + counts[4]), n)
@@ -1060,7 +1271,7 @@ def summarise(run: MonteCarloRun, case, results):
             confidence += (f" The most probable class is {most_probable} "
                            f"({_format_probability(class_probabilities[str(most_probable)])}), "
                            f"not the nominal class.")
-    count_no_td24 = int(np.count_nonzero(no_td24))
+    count_no_td24 = tally["no_td24"]
     if count_no_td24:
         confidence += (f" {count_no_td24} samples without a TD24 in 150-1500 K count as class 5 "
                        f"(fail closed).")
@@ -1070,9 +1281,9 @@ def summarise(run: MonteCarloRun, case, results):
         warnings.append(f"Monte Carlo: {count_no_td24} of {n} samples have no TD24 between 150 K "
                         f"and 1500 K; they are counted as class 5 (fail closed) and rank as the "
                         f"most critical in the percentiles.")
-    if np.any(tmr_undefined):
+    if tmr_undefined_count:
         warnings.append(f"Monte Carlo: TMRad at MTSR is undefined for "
-                        f"{int(np.count_nonzero(tmr_undefined))} samples; counted as 'frequent' "
+                        f"{tmr_undefined_count} samples; counted as 'frequent' "
                         f"(fail closed).")
     for vessel in vessels:
         if vessel["undefined_samples"]:
@@ -1099,6 +1310,7 @@ def summarise(run: MonteCarloRun, case, results):
             f"{_format_probability(class_probabilities[str(nominal_class)])}; the verdict is not "
             f"robust against the stated uncertainties.")
 
+    spreads = tally["spreads"]
     block = {
         "samples": n,
         "seed": run.seed,
@@ -1116,18 +1328,22 @@ def summarise(run: MonteCarloRun, case, results):
         "probability_mtsr_at_or_above_td24": p_td24,
         "probability_mtsr_at_or_above_mtt": p_mtt,
         "probability_standard_error_max": 0.5 / math.sqrt(n),
-        "severity_probabilities": level_probabilities(severity_codes, crit.SEVERITY_4_LEVELS),
-        "severity_3_probabilities": level_probabilities(severity3, crit.SEVERITY_3_LEVELS),
-        "probability_level_probabilities": level_probabilities(probability_codes,
+        "severity_probabilities": level_probabilities("severity", crit.SEVERITY_4_LEVELS),
+        "severity_3_probabilities": level_probabilities("severity_3", crit.SEVERITY_3_LEVELS),
+        "probability_level_probabilities": level_probabilities("probability",
                                                                crit.PROBABILITY_6_LEVELS),
-        "probability_3_level_probabilities": level_probabilities(probability3,
+        "probability_3_level_probabilities": level_probabilities("probability_3",
                                                                  crit.PROBABILITY_3_LEVELS),
-        "mtsr_degC": _spread(mtsr, offset=ZERO_CELSIUS),
-        "td24_degC": _spread(td24, offset=ZERO_CELSIUS, undefined=-np.inf),
-        "tmrad_at_mtsr_h": _spread(tmr, scale=SECONDS_PER_HOUR, undefined=0.0),
-        "onset_margin_K": _spread(margin, undefined=-np.inf),
-        "synthesis_adiabatic_rise_K": _spread(fig["synthesis_rise"]),
-        "decomposition_adiabatic_rise_K": _spread(fig["decomposition_rise"]),
+        "mtsr_degC": _spread(mtsr, offset=ZERO_CELSIUS, tally=spreads["mtsr"]),
+        "td24_degC": _spread(td24, offset=ZERO_CELSIUS, undefined=-np.inf,
+                             tally=spreads["td24"]),
+        "tmrad_at_mtsr_h": _spread(tmr, scale=SECONDS_PER_HOUR, undefined=0.0,
+                                   tally=spreads["tmrad_at_mtsr"]),
+        "onset_margin_K": _spread(margin, undefined=-np.inf, tally=spreads["onset_margin"]),
+        "synthesis_adiabatic_rise_K": _spread(fig["synthesis_rise"],
+                                              tally=spreads["synthesis_rise"]),
+        "decomposition_adiabatic_rise_K": _spread(fig["decomposition_rise"],
+                                                  tally=spreads["decomposition_rise"]),
         "td24_no_root_samples": count_no_td24,
         "vessels": vessels,
         "sensitivity": ranking,
