@@ -118,16 +118,19 @@ def format_portfolio(frame, files_count: int) -> str:
 
 def _write_partial_csv(frame, csv_path, force, files, exc) -> None:
     """The rows finished before an interruption, under a first line marking the table partial."""
-    from screen.io.fileio import Interrupted, write_atomic
-
+    import csv
     import signal
+
+    from screen.cautions import csv_comment
+    from screen.io.fileio import Interrupted, write_atomic
 
     signal_name = (signal.Signals(exc.signum).name if isinstance(exc, Interrupted)
                    else "Ctrl-C (SIGINT)")
     finished = frame["file"].nunique()
     head = (f"# PARTIAL: interrupted by {signal_name}; {finished} of {len(files)} case files "
             f"screened, the others are missing from this table\n")
-    body = frame.to_csv(index=False, lineterminator="\n")
+    body = csv_comment() + frame.to_csv(index=False, lineterminator="\n",
+                                        quoting=csv.QUOTE_NONNUMERIC)
     try:
         write_atomic(csv_path, (head + body).encode("utf-8"), force=force, inputs=files)
     except Exception:  # noqa: BLE001 - the interruption is what gets reported
