@@ -514,9 +514,12 @@ def _variant(tmp_path, name, title, vessel=None):
     text = (CASES / "grignard_semibatch.toml").read_text(encoding="utf-8")
     text = re.sub(r'^title = .*$', lambda m: f"title = {json.dumps(title, ensure_ascii=False)}", text, count=1,
                   flags=re.M)
-    if vessel is not None:
-        text = re.sub(r'^name = .*$', lambda m: f"name = {json.dumps(vessel, ensure_ascii=False)}", text, count=1,
-                      flags=re.M)
+    if vessel is not None:  # the first name of the [vessel] section
+        start = text.index("[vessel]")
+        text = text[:start] + re.sub(
+            r'^name = .*$', lambda m: f"name = {json.dumps(vessel, ensure_ascii=False)}",
+            text[start:], count=1, flags=re.M)
+
     path = tmp_path / name
     path.write_text(text, encoding="utf-8")
     return path
