@@ -258,12 +258,7 @@ def _file_unit(case, section, name, index, kind) -> str:
                 return unit
             if kind == "number":
                 return ""
-    return {"temperature": "degC", "number": "", "time": "h"}.get(kind, _si_unit(kind))
-
-
-def _si_unit(kind: str) -> str:
-    return {"mass": "kg", "heat_transfer_coefficient": "W/(m^2 K)", "time": "s",
-            "temperature": "K"}.get(kind, "")
+    return {"temperature": "degC", "number": "", "time": "h"}.get(kind, _SI_UNITS.get(kind, ""))
 
 
 def admissible_range(case, section, name, index, base_results) -> tuple[float, float, str]:
@@ -1120,14 +1115,13 @@ def _window_axis(item: LimitInput, entries: list[dict]) -> tuple[float, float]:
     """Axis range [SI]: today's value and the limits found along this input, with a margin,
     inside the admissible range."""
     values = [item.current]
-    scale = 1.0 if item.kind != "temperature" else 1.0
     for e in entries:
         if e["key"] == item.key and e["status"] == "limit" and e["value"] is not None:
             values.append(_to_si(e["value"], item))
     low, high = min(values), max(values)
     span = high - low
     if span <= 0.0:
-        span = 40.0 * scale if item.kind == "temperature" else max(abs(item.current), 1e-9)
+        span = 40.0 if item.kind == "temperature" else max(abs(item.current), 1e-9)
     low, high = low - 0.3 * span, high + 0.3 * span
     return max(low, item.low), min(high, item.high)
 
