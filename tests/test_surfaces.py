@@ -211,3 +211,27 @@ def test_user_facing_method_notes_never_say_from_memory(path):
     source" (the provenance detail stays in docs/methods.md and the tests)."""
     text = _json(path)
     assert "from memory" not in text
+
+
+def test_pdf_sentences_do_not_contradict_themselves():
+    from screen.report.blocks import scenario_footnote
+    from screen.report.pdf import _probability_sentence
+
+    base_holds = [{"key": "base", "barrier_verdict": "holds", "criticality_class": 4},
+                  {"key": "x", "barrier_verdict": "fails", "criticality_class": 4}]
+    assert "NOT ASSESSED" not in scenario_footnote(base_holds)  # no row says it
+    with_not_assessed = base_holds + [{"key": "y", "barrier_verdict": "not assessed",
+                                       "criticality_class": 1}]
+    assert "NOT ASSESSED" in scenario_footnote(with_not_assessed)
+    crude = _probability_sentence({"probability_6": None, "tmrad_at_mtsr_h": 39.6})
+    assert "not assessed" not in crude and "no level is granted" in crude
+    screened = _probability_sentence({"probability_6": "occasional", "probability": "medium",
+                                      "tmrad_at_mtsr_h": 15.2})
+    assert "occasional" in screened and "15.2" in screened
+
+
+def test_class_one_wording_never_promises_no_runaway():
+    from screen.models.criticality import CLASS_MEANINGS
+
+    for klass in (1, 2):
+        assert "no runaway" not in CLASS_MEANINGS[klass].lower()
