@@ -264,7 +264,7 @@ def test_cli_bad_run_files(tmp_path, content, expected):
 def test_demo_run_is_consistent():
     # Invented demo data: consistency only, never a check value.
     result = CliRunner().invoke(main, ["kinetics", "--adiabatic",
-                                       "cases/calorimetry/hf233_arc_run.csv", "--sample-mass",
+                                       "cases/calorimetry/hf233_adiabatic_run.csv", "--sample-mass",
                                        "3.5 g", "--specific-heat", "1.9 J/(g K)", "--cell-mass",
                                        "9.5 g", "--cell-specific-heat", "0.525 J/(g K)",
                                        "--json"])

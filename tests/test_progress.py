@@ -151,7 +151,7 @@ def test_every_command_piped_prints_nothing_to_stderr(tmp_path):
         ["heat-flow", os.path.join(CASES, "calorimetry", "hf330_rc_semibatch.csv"),
          "--initial-mass", "1.2 kg", "--specific-heat", "1.9 kJ/(kg K)", "--png-dir",
          str(tmp_path / "png-heat-flow")],
-        ["kinetics", "--adiabatic", os.path.join(CASES, "calorimetry", "hf233_arc_run.csv"),
+        ["kinetics", "--adiabatic", os.path.join(CASES, "calorimetry", "hf233_adiabatic_run.csv"),
          "--phi", "1.75", "--specific-heat", "1.9 J/(g K)", "--json"],
         ["batch", str(portfolio), "--workers", "2"],
         ["batch", str(portfolio), "--workers", "1", "--json", "--csv",

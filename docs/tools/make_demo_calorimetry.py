@@ -43,10 +43,10 @@ def main():
     run = heat_wait_search_run(activation_energy=125e3, order=1.5, rise=290.0, phi=1.75,
                                onset_target=438.15, first_step=373.15, step=5.0, noise=0.004,
                                seed=233, sample_mass=3.5e-3, gas_yield=0.3)
-    write_csv(OUT / "hf233_arc_run.csv", run, ["time_s", "temperature_degC", "pressure_bar"],
+    write_csv(OUT / "hf233_adiabatic_run.csv", run, ["time_s", "temperature_degC", "pressure_bar"],
               fmt="%.5f", comments=[
                   "INVENTED DEMO DATA of the invented company Halvorsen Fine Chemicals: HF-233 "
-                  "distillation bottoms, adiabatic heat-wait-search run ARC-1187 (not a measurement)",
+                  "distillation bottoms, adiabatic heat-wait-search run AD-1187 (not a measurement)",
                   "Simulated from known parameters by docs/tools/make_demo_calorimetry.py: "
                   "E = 125 kJ/mol, order 1.5, adiabatic rise 290 K at phi = 1, phi = 1.75 "
                   "(3.5 g sample, c'p 1.9 J/(g K); 9.5 g cell, c'p 0.525 J/(g K)), 5 K steps "
