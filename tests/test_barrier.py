@@ -333,14 +333,23 @@ def test_not_assessed_below_the_mtt_unless_asked():
     assert vessel["synthesis_heat_release_rate_at_mtt_kW"] == 0.0  # synthesis never gets there
 
 
-def test_simulated_mtsr_governs_when_higher():
-    """governing_mtsr takes the simulation's feed-stopped MTSR only when it is higher."""
+def test_barrier_reads_the_governing_mtsr_decided_once():
+    """governing_mtsr reads the governing MTSR of the engine (screen.analyses.governing)."""
     from screen.analyses.barrier import governing_mtsr
+    from screen.analyses.governing import govern_mtsr
 
-    results = {"mtsr_degC": 100.0, "simulation": {"mtsr_feed_stopped_degC": 120.0}}
+    results = {"mtsr_degC": 100.0, "mtsr_governing_degC": 120.0,
+               "mtsr_governing_source": "simulation-feed-stopped"}
     assert governing_mtsr(results) == (pytest.approx(120.0 + ZERO_CELSIUS), "simulation")
-    results["simulation"]["mtsr_feed_stopped_degC"] = 90.0
+    results.update(mtsr_governing_degC=100.0, mtsr_governing_source="stated")
     assert governing_mtsr(results) == (pytest.approx(100.0 + ZERO_CELSIUS), "case")
+    # The decision itself: the simulated feed-stopped MTSR governs only when it is higher.
+    case, _ = screened(raw_case())
+    low = govern_mtsr(case, 373.15, 50.0, {"mtsr_feed_stopped_degC": 90.0})
+    high = govern_mtsr(case, 373.15, 50.0, {"mtsr_feed_stopped_degC": 120.0})
+    assert (low.temperature, low.source) == (pytest.approx(373.15), "stated")
+    assert (high.temperature, high.source) == (pytest.approx(393.15),
+                                                "simulation-feed-stopped")
 
 
 # --- case checks -------------------------------------------------------------------------------

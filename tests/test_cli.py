@@ -49,9 +49,14 @@ def test_check_json_contract_on_every_case(path):
     assert r["mtsr_degC"] >= r["process_temperature_degC"]
     assert r["final_temperature_degC"] >= r["mtsr_degC"]
     assert r["tmrad_at_mtsr_h"] <= r["tmrad_at_process_temperature_h"]
+    # The class and every figure derived from MTSR follow the governing MTSR (issue 18 item 2).
+    assert r["mtsr_governing_degC"] >= r["mtsr_degC"]
+    assert r["final_temperature_degC"] == pytest.approx(
+        r["mtsr_governing_degC"] + r["decomposition_adiabatic_rise_K"], abs=1e-6)
     if r["criticality_class"] is not None:
         assert r["criticality_class"] == criticality_class(
-            r["process_temperature_degC"], r["mtsr_degC"], r["mtt_degC"], r["td24_degC"])
+            r["process_temperature_degC"], r["mtsr_governing_degC"], r["mtt_degC"],
+            r["td24_degC"])
         assert r["severity"] in ("low", "medium", "high")
         assert r["probability_6"] in ("frequent", "probable", "occasional", "seldom", "remote",
                                       "almost impossible")

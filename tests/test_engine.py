@@ -172,7 +172,8 @@ def test_higher_simulated_mtsr_governs_the_class():
     path = pathlib.Path(__file__).parent.parent / "cases" / "acylation_semibatch_kinetics.toml"
     case = load_case(path, overrides=["process.accumulation=0.01",
                                       "process.max_technical_temperature=55 degC",
-                                      "solvent.pressure=0.45 bar"])
+                                      "solvent.pressure=0.45 bar",
+                                      "process.feed_interlock=true"])
     result = screen_case(case, curves=False)
     r = result.results
     simulated = r["simulation"]["mtsr_feed_stopped_degC"]
@@ -182,7 +183,8 @@ def test_higher_simulated_mtsr_governs_the_class():
                                  r["td24_degC"])
     assert r["criticality_class"] == expected
     assert r["criticality_class"] > r["criticality_class_stated_mtsr"]
-    assert any("class is raised" in w for w in result.warnings)
+    assert r["mtsr_feed_mode"] == "stopped"
+    assert any("the class is" in w and "instead of" in w for w in result.warnings)
 
 
 def test_vessel_without_semenov_structure_cannot_conclude(monkeypatch):

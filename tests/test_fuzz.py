@@ -249,7 +249,7 @@ def test_random_valid_cases_screen_with_physical_invariants(drawn):
     assert r["tmrad_at_process_temperature_h"] >= r["tmrad_at_mtsr_h"] >= 0.0
     computed = r["criticality_class_computed"]
     assert computed in (1, 2, 3, 4, 5)
-    assert computed == criticality_class(r["process_temperature_degC"], r["mtsr_degC"],
+    assert computed == criticality_class(r["process_temperature_degC"], r["mtsr_governing_degC"],
                                          r["mtt_degC"], r["td24_degC"])
     if parameters["basis"] == "onset":
         # Fail closed: a crude onset estimate never grants a class below 4.

@@ -250,6 +250,7 @@ def test_optional_blocks_are_rendered_when_present(tmp_path):
                                    "failure_temperature_K": np.linspace(360.0, 380.0, 40)}
     result.results["mtsr_governing_degC"] = result.results["mtsr_degC"] + 12.5
     result.results["mtsr_governing_basis"] = "simulation (feed stopped at the worst failure time)"
+    result.results["mtsr_governing_source"] = "simulation-feed-stopped"
     result.results["some_new_block"] = {"summary_lines": ["A block this report does not know."]}
     pdf = tmp_path / "blocks.pdf"
     write_report(result, pdf, generated_at=STAMP)

@@ -60,7 +60,9 @@ def raw_case(mode="semi-batch", scenarios=None, **changes):
         "scenarios": dict(scenarios or {}),
     }
     if mode == "semi-batch":
-        raw["process"].update(accumulation=ACCUMULATION, accumulation_mass_ratio=MASS_RATIO)
+        # Declared interlock: the estimates below are checked on the feed-stopped MTSR.
+        raw["process"].update(accumulation=ACCUMULATION, accumulation_mass_ratio=MASS_RATIO,
+                              feed_interlock=True)
     for key, value in changes.items():
         section, name = key.split(".")
         if value is None:

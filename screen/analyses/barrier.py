@@ -73,8 +73,8 @@ def _worst(verdicts) -> str:
 def governing_mtsr(results) -> tuple[float, str]:
     """MTSR that governs the cooling-failure scenario, and where it comes from.
 
-    The MTSR of the case (given accumulation), or the highest MTSR of the cooling-failure
-    simulation (``results["simulation"]["mtsr_feed_stopped_degC"]``) when that is higher.
+    Reads the governing MTSR decided once by :mod:`screen.analyses.governing`
+    (``results["mtsr_governing_degC"]`` and ``results["mtsr_governing_source"]``).
 
     Parameters
     ----------
@@ -84,15 +84,15 @@ def governing_mtsr(results) -> tuple[float, str]:
     Returns
     -------
     (float, str)
-        MTSR [K] and ``"case"`` or ``"simulation"``.
+        MTSR [K] and ``"case"`` (stated accumulation), ``"simulation"`` (simulated, feed
+        stopped), ``"simulation-feed-continuing"`` or ``"feed-continuing-bound"``.
     """
-    core = float(results["mtsr_degC"])
-    simulation = results.get("simulation")
-    value = simulation.get(SIMULATION_MTSR_KEY) if isinstance(simulation, dict) else None
-    if isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value) \
-            and value > core:
-        return float(value) + ZERO_CELSIUS, "simulation"
-    return core + ZERO_CELSIUS, "case"
+    value = results.get("mtsr_governing_degC")
+    source = results.get("mtsr_governing_source", "stated")
+    if value is None:
+        return float(results["mtsr_degC"]) + ZERO_CELSIUS, "case"
+    label = {"stated": "case", "simulation-feed-stopped": "simulation"}.get(source, source)
+    return float(value) + ZERO_CELSIUS, label
 
 
 def solvent_properties(case, temperature) -> dict:
@@ -582,6 +582,7 @@ def add_barrier(case, result, curves: bool = False) -> None:
         "mtt_degC": mtt - ZERO_CELSIUS,
         "mtsr_degC": mtsr - ZERO_CELSIUS,
         "mtsr_basis": mtsr_basis,
+        "mtsr_basis_text": r.get("mtsr_governing_basis", "MTSR from the stated accumulation"),
         "accumulation_mass_ratio": context["mass_ratio"],
         "solvent": None if solvent is None else solvent["name"],
         "boiling_pressure_bar": None if solvent is None else solvent["pressure"] / 1e5,
@@ -621,7 +622,9 @@ def _context(case, results, mtt, mtsr, mtsr_basis, klass) -> dict:
     solvent_section = case.sections.get("solvent")
     return {
         "mtt": mtt, "mtsr": mtsr, "mtsr_basis": mtsr_basis, "criticality_class": klass,
-        "mass_ratio": ratio if process.mode == "semi-batch" else 1.0,
+        # With the feed continuing the whole charge ends in the final mass.
+        "mass_ratio": (ratio if process.mode == "semi-batch"
+                       and results.get("mtsr_feed_mode") != "continuing" else 1.0),
         "solvent": solvent,
         "solvent_amount": None if solvent_section is None or solvent_section.amount is None
         else float(solvent_section.amount),
@@ -681,9 +684,8 @@ def _summary_lines(heading, block) -> list[str]:
                            f"bar, latent heat "
                            f"{'n/a' if latent is None else format(latent, '.4g')} kJ/kg "
                            f"({block['latent_heat_source'] or 'not given'})"))
-    if block["mtsr_basis"] == "simulation":
-        lines.extend(_wrap(f"MTSR {block['mtsr_degC']:.1f} degC from the cooling-failure "
-                           f"simulation (higher than with the given accumulation)"))
+    if block["mtsr_basis"] != "case":
+        lines.extend(_wrap(f"MTSR {block['mtsr_degC']:.1f} degC: {block['mtsr_basis_text']}"))
     vessels = block["vessels"]
     if vessels and block["solvent"] is not None:
         lines.append(f"  {'vessel':<14}{'heat kW':>8}{'vap kg/h':>9}{'cond kW':>8}"

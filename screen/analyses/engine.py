@@ -22,11 +22,12 @@ from screen.analyses.inputs import (
     ONSET_ESTIMATE_DETECTION_LIMIT,
     accumulation_mass_ratio,
     characteristic_temperatures,
-    onset_estimate_reference,
     decomposition_kinetics,
+    onset_estimate_reference,
     synthesis_specific_energy,
     tmrad_at,
 )
+from screen.analyses.governing import add_assumptions, govern_mtsr, governing_warnings
 from screen.analyses.vessels import vessel_results
 from screen.cautions import CAUTIONS
 from screen.constants import ZERO_CELSIUS
@@ -54,13 +55,7 @@ class ScreeningResult:
     cautions: tuple[str, ...] = CAUTIONS
 
     def to_json_dict(self, generated_at: str | None = None) -> dict[str, Any]:
-        """JSON-ready dict. Only ``generated_at`` varies between identical runs.
-
-        Parameters
-        ----------
-        generated_at : str or None
-            ISO 8601 time stamp written as ``generated_at``; None omits it (reproducible output).
-        """
+        """JSON-ready dict. Only ``generated_at`` varies between identical runs."""
         case = self.case
         header = case.sections["case"]
         return {
@@ -136,6 +131,13 @@ def _plausibility_warnings(case, synthesis_rise, decomposition_rise, warnings):
 def screen_case(case, curves: bool = True) -> ScreeningResult:
     """Run the screening of one case.
 
+    The steps, in order: synthesis (stated MTSR), decomposition (kinetics, TD24), the
+    cooling-failure simulation (with ``[synthesis_kinetics]``), the governing MTSR
+    (:mod:`screen.analyses.governing`), every figure derived from it (final temperature,
+    severity, TMRad at MTSR, probability, onset margin, class), the vessels, the pressure, the
+    barrier, the technical limits (:mod:`screen.analyses.technical_limits`) and last the
+    assumptions the verdict rests on.
+
     Parameters
     ----------
     case : screen.io.case.Case
@@ -153,18 +155,39 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
     ScreenError
         A model was outside its domain or a numerical method failed; the message says which.
     """
-    from screen.models import decomposition as dm
-
     warnings: list[str] = list(case.warnings)
     methods: dict[str, str] = {}
-    process = case.sections["process"]
-    mass = case.sections["mass"]
-    dec = case.sections["decomposition"]
-    cp = float(mass.specific_heat)
-    t_p = float(process.temperature)
     mtt = maximum_technical_temperature(case, methods, warnings)
+    synthesis = _synthesis_step(case, methods, warnings)
+    decomposition = _decomposition_step(case, methods, warnings)
+    _plausibility_warnings(case, synthesis["rise"], decomposition["rise"], warnings)
+    results = _stated_results(case, synthesis, decomposition, mtt)
+    curve_data = {
+        "temperatures_K": {"T_p": synthesis["t_p"], "MTSR": synthesis["mtsr"], "MTT": mtt,
+                           "TD24": decomposition["td24"], "TD8": decomposition["td8"]},
+        "kinetics": decomposition["kinetics"],
+        "specific_heat": synthesis["cp"],
+    }
+    result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
+                             curves=curve_data)
+    if "synthesis_kinetics" in case.sections:
+        simulation.add_simulation(case, result, curves=curves)
+    governing = govern_mtsr(case, synthesis["mtsr"], synthesis["rise"], results.get("simulation"))
+    _mtsr_figures(case, result, synthesis, decomposition, mtt, governing)
+    if curves:
+        _tmrad_curve(result, synthesis, decomposition)
+    _add_vessels(case, result, decomposition["kinetics"], governing.temperature)
+    _add_analyses(case, result, curves)
+    technical_limits.apply_technical_limits(case, result, _verdict_text)
+    add_assumptions(case, result, governing)
+    return result
 
-    # Synthesis: adiabatic rise and MTSR.
+
+def _synthesis_step(case, methods, warnings) -> dict:
+    """Synthesis heat, adiabatic rise and the MTSR from the stated accumulation (SI)."""
+    process = case.sections["process"]
+    cp = float(case.sections["mass"].specific_heat)
+    t_p = float(process.temperature)
     q_syn = synthesis_specific_energy(case)
     rise_syn = float(thermal.adiabatic_temperature_rise(q_syn, cp))
     if process.mode == "semi-batch":
@@ -176,35 +199,52 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
         if process.accumulation_mass_ratio is not None:
             warnings.append("process.accumulation_mass_ratio is ignored in batch mode (the mass "
                             "does not change during the step).")
+        if process.feed_interlock is not None:
+            warnings.append("process.feed_interlock is ignored in batch mode (nothing is fed "
+                            "during the step).")
     mtsr = float(thermal.maximum_temperature_synthesis_reaction(t_p, rise_syn, accumulation,
                                                                  mass_ratio))
     methods["mtsr"] = ("MTSR = T_p + X_ac dT_ad / (m(t_acc)/m_final) (Stoessel, Chem. Eng. Prog. "
-                       "89(10) 1993; mass correction derived)")
+                       "89(10) 1993; mass correction derived). The governing MTSR is the highest "
+                       "of this value, the simulated feed-stopped MTSR and, in semi-batch "
+                       "without a declared feed interlock, the temperature reached with the feed "
+                       "continuing (simulated, or the bound T_p + dT_ad of the full charge); "
+                       "every figure derived from MTSR uses the governing value.")
+    return {"cp": cp, "t_p": t_p, "q": q_syn, "rise": rise_syn, "accumulation": accumulation,
+            "mass_ratio": mass_ratio, "mtsr": mtsr}
 
-    # Decomposition.
+
+def _decomposition_step(case, methods, warnings) -> dict:
+    """Decomposition kinetics, its adiabatic rise, TMRad at T_p, TD24 and TD8 (SI)."""
+    from screen.models import decomposition as dm
+
+    dec = case.sections["decomposition"]
+    cp = float(case.sections["mass"].specific_heat)
+    t_p = float(case.sections["process"].temperature)
     try:
         kinetics, basis = decomposition_kinetics(case)
         dm.validate_kinetics(kinetics)
     except ModelDomainError as exc:
         raise ModelDomainError(exc.message, exc.key or "decomposition", case.path) from None
-    rise_dec = float(thermal.adiabatic_temperature_rise(dec.energy, cp))
-    final_temperature = mtsr + rise_dec
-    _plausibility_warnings(case, rise_syn, rise_dec, warnings)
-
     try:
         tmrad_tp = tmrad_at(kinetics, t_p, cp)
-        tmrad_mtsr = tmrad_at(kinetics, mtsr, cp)
-        tmrad_mtsr_zero = float(dm.tmrad_townsend_tou_for(kinetics, mtsr, cp))
         td24, td8 = characteristic_temperatures(kinetics, cp)
     except ScreenError as exc:
         raise type(exc)(exc.message, exc.key or "decomposition", case.path) from None
-    for name, value in (("TMRad at T_p", tmrad_tp), ("TMRad at MTSR", tmrad_mtsr),
-                        ("TD24", td24), ("TD8", td8)):
+    for name, value in (("TMRad at T_p", tmrad_tp), ("TD24", td24), ("TD8", td8)):
         if not math.isfinite(value):
             raise SolverError(f"{name} is not a finite number for these kinetics; check the "
                               f"decomposition data", "decomposition", case.path)
+    onset_reference = onset_estimate_reference(case) if basis == "onset-estimate" else None
+    _decomposition_methods(kinetics.model, basis, methods)
+    _decomposition_warnings(dec, basis, td24, onset_reference, warnings)
+    return {"kinetics": kinetics, "basis": basis, "model": kinetics.model,
+            "onset_reference": onset_reference,
+            "rise": float(thermal.adiabatic_temperature_rise(dec.energy, cp)),
+            "tmrad_tp": tmrad_tp, "td24": td24, "td8": td8}
 
-    model_name = kinetics.model
+
+def _decomposition_methods(model_name, basis, methods) -> None:
     if model_name == "zero-order":
         methods["tmrad"] = ("Zero order: TMRad = c'p R T0^2 / (q(T0) E) (Townsend & Tou, "
                             "Thermochim. Acta 37 (1980) 1-30)")
@@ -214,25 +254,17 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                             f"Townsend & Tou (1980) value shown for comparison")
     methods["td24"] = "Start temperature at which TMRad = 24 h (TD8: 8 h), same model, root finding"
     methods["criticality_class"] = "Criticality classes (Stoessel, Chem. Eng. Prog. 89(10) 1993)"
-    methods["severity"] = ("Severity from the runaway's adiabatic rise (final temperature - T_p); "
-                           "probability from TMRad at MTSR (Stoessel 2008 ch. 3; verify the band limits "
-                           "against the source)")
+    methods["severity"] = ("Severity from the runaway's adiabatic rise (final temperature - T_p, "
+                           "final temperature = governing MTSR + dT_ad of the decomposition); "
+                           "probability from TMRad at the governing MTSR (Stoessel 2008 ch. 3; "
+                           "verify the bands against the source)")
+    if basis == "onset-estimate":
+        methods["tmrad"] = ("Crude estimate from the DSC onset (zero order, low activation "
+                            "energy, onset as detection limit; Keller et al., J. Loss Prev. "
+                            "Process Ind. 10 (1997) 31-41; verify against the source)")
 
-    conservative, reasons = dm.zero_order_is_conservative(kinetics, mtsr, cp)
-    if model_name != "zero-order" and not bool(np.all(conservative)):
-        reason = reasons if isinstance(reasons, str) else "; ".join(map(str, np.atleast_1d(reasons)))
-        warnings.append(
-            f"The zero-order (Townsend & Tou) TMRad at MTSR ({to_hours(tmrad_mtsr_zero):.3g} h) is "
-            f"NOT conservative for this {model_name} decomposition ({reason}); the verdict uses "
-            f"the {model_name} value ({to_hours(tmrad_mtsr):.3g} h).")
-    if model_name == "zero-order" and basis == "kinetics":
-        b_number = float(dm.semenov_b_number(mtsr, rise_dec, kinetics.activation_energy))
-        if b_number < 10.0:
-            warnings.append(
-                f"B = E dT_ad/(R T0^2) = {b_number:.3g} at MTSR is small: reactant consumption "
-                f"matters and the zero-order TMRad is only a rough estimate.")
 
-    onset_reference = onset_estimate_reference(case) if basis == "onset-estimate" else None
+def _decomposition_warnings(dec, basis, td24, onset_reference, warnings) -> None:
     if basis == "onset-estimate":
         warnings.append(
             "Decomposition kinetics missing: TMRad and TD24 are a CRUDE estimate from the DSC "
@@ -249,10 +281,6 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
         if dec.model is not None:
             warnings.append("decomposition.basis = \"onset-estimate\": the model keys of the "
                             "section are not used; the section is a crude onset estimate.")
-        methods["tmrad"] = ("Crude estimate from the DSC onset (zero order, low activation "
-                            "energy, onset as detection limit; Keller et al., J. Loss Prev. "
-                            "Process Ind. 10 (1997) 31-41; verify against the source)")
-
     lowest_measured = dec.lowest_measured_temperature or dec.reference_temperature
     if basis == "kinetics" and lowest_measured is None:
         warnings.append(
@@ -267,173 +295,183 @@ def screen_case(case, curves: bool = True) -> ScreeningResult:
                 f"at which the decomposition was measured ({to_celsius(lowest_measured):.1f} degC): "
                 f"the kinetics are extrapolated far outside the measured range.")
 
-    klass = crit.criticality_class(t_p, mtsr, mtt, td24)
+
+def _stated_results(case, synthesis, decomposition, mtt) -> dict[str, Any]:
+    """The figures that do not depend on which MTSR governs (JSON-ready)."""
+    process = case.sections["process"]
+    dec = case.sections["decomposition"]
+    t_p = synthesis["t_p"]
+    results: dict[str, Any] = {
+        "process_temperature_degC": to_celsius(t_p),
+        "mode": process.mode,
+        "accumulation": synthesis["accumulation"],
+        "accumulation_mass_ratio": synthesis["mass_ratio"],
+        "synthesis_energy_kJ_per_kg": synthesis["q"] / 1000.0,
+        "synthesis_adiabatic_rise_K": synthesis["rise"],
+        "mtsr_degC": to_celsius(synthesis["mtsr"]),
+        "mtt_degC": to_celsius(mtt),
+        "decomposition_energy_kJ_per_kg": dec.energy / 1000.0,
+        "decomposition_adiabatic_rise_K": decomposition["rise"],
+        "decomposition_model": decomposition["model"],
+        "decomposition_basis": decomposition["basis"],
+        "tmrad_at_process_temperature_h": to_hours(decomposition["tmrad_tp"]),
+        "td24_degC": to_celsius(decomposition["td24"]),
+        "td8_degC": to_celsius(decomposition["td8"]),
+    }
+    return results
+
+
+def _mtsr_figures(case, result, synthesis, decomposition, mtt, governing) -> None:
+    """Every figure derived from MTSR, at the governing MTSR: final temperature, runaway rise,
+    severity, TMRad at MTSR, probability, onset margin, class and verdict."""
+    from screen.models import decomposition as dm
+
+    r, warnings = result.results, result.warnings
+    kinetics, cp, basis = decomposition["kinetics"], synthesis["cp"], decomposition["basis"]
+    t_p, td24, rise_dec = synthesis["t_p"], decomposition["td24"], decomposition["rise"]
+    mtsr = governing.temperature
+    try:
+        tmrad_mtsr = tmrad_at(kinetics, mtsr, cp)
+        tmrad_mtsr_zero = float(dm.tmrad_townsend_tou_for(kinetics, mtsr, cp))
+        tmrad_stated = (tmrad_mtsr if governing.source == "stated"
+                        else tmrad_at(kinetics, synthesis["mtsr"], cp))
+    except ScreenError as exc:
+        raise type(exc)(exc.message, exc.key or "decomposition", case.path) from None
+    if not math.isfinite(tmrad_mtsr):
+        raise SolverError("TMRad at MTSR is not a finite number for these kinetics; check the "
+                          "decomposition data", "decomposition", case.path)
+    _tmrad_model_warnings(kinetics, basis, mtsr, rise_dec, cp, tmrad_mtsr, tmrad_mtsr_zero,
+                          warnings)
+    final_temperature = mtsr + rise_dec
+    runaway_rise = final_temperature - t_p
+    tmr_h = to_hours(tmrad_mtsr)
+    klass = int(crit.criticality_class(t_p, mtsr, mtt, td24))
+    stated_class = int(crit.criticality_class(t_p, synthesis["mtsr"], mtt, td24))
     if td24 <= t_p:
         warnings.append(f"TD24 ({to_celsius(td24):.1f} degC) is at or below the process "
                         f"temperature ({to_celsius(t_p):.1f} degC): outside the class scheme; "
                         f"reported as class 5, the most critical outcome. The mass is not stable "
                         f"for 24 h even under normal conditions.")
-    runaway_rise = final_temperature - t_p
     severity_4 = crit.severity_level(runaway_rise, 4)
-    severity_3 = crit.severity_level(runaway_rise, 3)
-    tmr_h = to_hours(tmrad_mtsr)
-    probability_6 = crit.probability_level(tmr_h, 6)
-    probability_3 = crit.probability_level(tmr_h, 3)
-
-    reported_class: int | None = int(klass)
+    probability_6, probability_3 = crit.probability_level(tmr_h, 6), crit.probability_level(tmr_h, 3)
+    reported_class: int | None = klass
+    verdict_status = "screened"
     if basis == "onset-estimate":
         # Fail closed: a crude estimate may confirm a high class but never grant a low one.
+        onset_reference = decomposition["onset_reference"]
         if klass >= 4 and (onset_reference["declared"] or klass >= 5):
             verdict_status = "crude-estimate"
         else:
             verdict_status = "cannot-conclude"
             reported_class = None
             probability_6 = probability_3 = None
-    else:
-        verdict_status = "screened"
     verdict = _verdict_text(klass, severity_4, probability_6, verdict_status)
-
-    results: dict[str, Any] = {
-        "process_temperature_degC": to_celsius(t_p),
-        "mode": process.mode,
-        "accumulation": accumulation,
-        "accumulation_mass_ratio": mass_ratio,
-        "synthesis_energy_kJ_per_kg": q_syn / 1000.0,
-        "synthesis_adiabatic_rise_K": rise_syn,
-        "mtsr_degC": to_celsius(mtsr),
-        "mtt_degC": to_celsius(mtt),
-        "decomposition_energy_kJ_per_kg": dec.energy / 1000.0,
-        "decomposition_adiabatic_rise_K": rise_dec,
+    if governing.source != "stated" and reported_class is not None:
+        verdict += (f" The class rests on the {governing.basis} ({to_celsius(mtsr):.1f} degC), "
+                    f"not on the MTSR from the stated accumulation "
+                    f"({to_celsius(synthesis['mtsr']):.1f} degC).")
+    r.update({
+        "mtsr_governing_degC": to_celsius(mtsr),
+        "mtsr_governing_basis": governing.basis,
+        "mtsr_governing_source": governing.source,
+        "mtsr_feed_mode": governing.feed_mode,
+        "mtsr_candidates_degC": {name: to_celsius(value)
+                                 for name, value in governing.candidates.items()},
         "final_temperature_degC": to_celsius(final_temperature),
         "runaway_adiabatic_rise_K": runaway_rise,
-        "decomposition_model": model_name,
-        "decomposition_basis": basis,
-        "tmrad_at_process_temperature_h": to_hours(tmrad_tp),
         "tmrad_at_mtsr_h": tmr_h,
+        "tmrad_at_mtsr_governing_h": tmr_h,
+        "tmrad_at_mtsr_stated_h": to_hours(tmrad_stated),
         "tmrad_at_mtsr_zero_order_h": to_hours(tmrad_mtsr_zero),
-        "td24_degC": to_celsius(td24),
-        "td8_degC": to_celsius(td8),
         "onset_margin_K": td24 - mtsr,
+        "onset_margin_governing_K": td24 - mtsr,
         "criticality_class": reported_class,
-        "criticality_class_computed": int(klass),
-        "criticality_meaning": (crit.CLASS_MEANINGS[int(klass)] if reported_class is not None
+        "criticality_class_computed": klass,
+        "criticality_class_stated_mtsr": stated_class,
+        "criticality_meaning": (crit.CLASS_MEANINGS[klass] if reported_class is not None
                                 else "Cannot conclude: no decomposition kinetics."),
-        "severity": severity_3,
+        "severity": crit.severity_level(runaway_rise, 3),
         "severity_4": severity_4,
         "probability": probability_3,
         "probability_6": probability_6,
         "verdict_status": verdict_status,
         "verdict": verdict,
-    }
+    })
+    onset_reference = decomposition["onset_reference"]
     if onset_reference is not None:
-        results["onset_estimate"] = {
+        r["onset_estimate"] = {
             "onset_type": onset_reference["onset_type"],
             "declared": onset_reference["declared"],
             "reference_temperature_degC": to_celsius(onset_reference["temperature"]),
             "reference_rate_W_per_kg": onset_reference["rate"],
             "basis": onset_reference["text"],
         }
-    if dec.onset_temperature is not None:
-        onset = float(dec.onset_temperature)
-        results["dsc_onset_degC"] = to_celsius(onset)
-        results["dsc_onset_minus_process_temperature_K"] = onset - t_p
-        results["dsc_onset_minus_mtsr_K"] = onset - mtsr
-        results["dsc_onset_note"] = (
-            "For information only: the '100 K below the DSC onset' margin is a rule of thumb with "
-            "no published basis (common practice, no source) and is not used for the verdict.")
-
-    curve_data = {
-        "temperatures_K": {"T_p": t_p, "MTSR": mtsr, "MTT": mtt, "TD24": td24, "TD8": td8,
-                           "final": final_temperature},
-        "kinetics": kinetics,
-        "specific_heat": cp,
-    }
-    if curves:
-        low = min(t_p, td24) - 30.0
-        high = max(final_temperature, td8, mtsr) + 30.0
-        grid = np.linspace(max(low, 150.0), high, 160)
-        with np.errstate(all="ignore"):
-            tmr_grid = np.asarray(dm.tmrad(kinetics, grid, cp), dtype=float)
-        curve_data["tmrad_curve"] = (grid, tmr_grid)
-        # The unmitigated course from MTSR (figure 3 of the PDF); integrated on first use.
-        curve_data["adiabatic_course"] = AdiabaticCourse(kinetics, mtsr, cp)
-
-    result = ScreeningResult(case=case, results=results, warnings=warnings, methods=methods,
-                             curves=curve_data)
-    _add_vessels(case, result, kinetics, mtsr)
-    _add_analyses(case, result, curves)
-    _class_from_simulated_mtsr(result, t_p, mtt, td24)
-    technical_limits.apply_technical_limits(case, result, _verdict_text)
-    return result
+    _dsc_onset_figures(case, r, t_p, mtsr)
+    result.curves["temperatures_K"].update({"MTSR_governing": mtsr, "final": final_temperature})
+    warnings.extend(governing_warnings(governing, stated_class if reported_class is not None
+                                       else None, reported_class))
 
 
-#: A simulated MTSR this much above the stated one governs the class [K] (design).
-SIMULATED_MTSR_MARGIN = 1.0
+def _tmrad_model_warnings(kinetics, basis, mtsr, rise_dec, cp, tmrad_mtsr, tmrad_mtsr_zero,
+                          warnings) -> None:
+    from screen.models import decomposition as dm
+
+    model_name = kinetics.model
+    conservative, reasons = dm.zero_order_is_conservative(kinetics, mtsr, cp)
+    if model_name != "zero-order" and not bool(np.all(conservative)):
+        reason = reasons if isinstance(reasons, str) else "; ".join(map(str, np.atleast_1d(reasons)))
+        warnings.append(
+            f"The zero-order (Townsend & Tou) TMRad at MTSR ({to_hours(tmrad_mtsr_zero):.3g} h) is "
+            f"NOT conservative for this {model_name} decomposition ({reason}); the verdict uses "
+            f"the {model_name} value ({to_hours(tmrad_mtsr):.3g} h).")
+    if model_name == "zero-order" and basis == "kinetics":
+        b_number = float(dm.semenov_b_number(mtsr, rise_dec, kinetics.activation_energy))
+        if b_number < 10.0:
+            warnings.append(
+                f"B = E dT_ad/(R T0^2) = {b_number:.3g} at MTSR is small: reactant consumption "
+                f"matters and the zero-order TMRad is only a rough estimate.")
 
 
-def _class_from_simulated_mtsr(result, t_p, mtt, td24) -> None:
-    """Fail closed: when the simulation (feed stopped at the worst moment) finds a higher MTSR
-    than the accumulation stated in [process], the class rests on the higher value."""
-    r = result.results
-    simulation = r.get("simulation")
-    if not isinstance(simulation, dict) or r.get("criticality_class") is None:
+def _dsc_onset_figures(case, r, t_p, mtsr) -> None:
+    dec = case.sections["decomposition"]
+    if dec.onset_temperature is None:
         return
-    simulated = simulation.get("mtsr_feed_stopped_degC")
-    if simulated is None or simulated <= r["mtsr_degC"] + SIMULATED_MTSR_MARGIN:
-        return
-    new_class = int(crit.criticality_class(t_p, simulated + ZERO_CELSIUS, mtt, td24))
-    r["mtsr_governing_degC"] = simulated
-    r["mtsr_governing_basis"] = "simulation (feed stopped at the worst failure time)"
-    r["onset_margin_governing_K"] = td24 - (simulated + ZERO_CELSIUS)
-    kinetics, cp = result.curves.get("kinetics"), result.curves.get("specific_heat")
-    if kinetics is not None and cp is not None:
-        from screen.models import decomposition as dm
+    onset = float(dec.onset_temperature)
+    r["dsc_onset_degC"] = to_celsius(onset)
+    r["dsc_onset_minus_process_temperature_K"] = onset - t_p
+    r["dsc_onset_minus_mtsr_K"] = onset - mtsr
+    r["dsc_onset_note"] = (
+        "For information only: the '100 K below the DSC onset' margin is a rule of thumb with "
+        "no published basis (common practice, no source) and is not used for the verdict.")
 
-        tmr_h = to_hours(float(dm.tmrad(kinetics, simulated + ZERO_CELSIUS, cp)))
-        r["tmrad_at_mtsr_governing_h"] = tmr_h
-        # The probability follows the shorter TMRad (fail closed).
-        if tmr_h < r["tmrad_at_mtsr_h"]:
-            r["probability_6"] = crit.probability_level(tmr_h, 6)
-            r["probability"] = crit.probability_level(tmr_h, 3)
-    if new_class > r["criticality_class"]:
-        r["criticality_class_stated_mtsr"] = r["criticality_class"]
-        r["criticality_class"] = new_class
-        r["criticality_class_computed"] = new_class
-        r["criticality_meaning"] = crit.CLASS_MEANINGS[new_class]
-        r["verdict"] = _verdict_text(new_class, r["severity_4"], r["probability_6"],
-                                     r["verdict_status"])
-        r["verdict"] += (f" The class rests on the simulated MTSR ({simulated:.1f} degC), which "
-                         f"is higher than the MTSR from the stated accumulation "
-                         f"({r['mtsr_degC']:.1f} degC).")
-        result.warnings.append(
-            f"The simulated MTSR ({simulated:.1f} degC, feed stopped at the worst moment) exceeds "
-            f"the MTSR from [process] ({r['mtsr_degC']:.1f} degC): the class is raised from "
-            f"{r['criticality_class_stated_mtsr']} to {new_class}. Check the stated accumulation.")
+
+def _tmrad_curve(result, synthesis, decomposition) -> None:
+    from screen.models import decomposition as dm
+
+    temps = result.curves["temperatures_K"]
+    t_p, td24, td8 = synthesis["t_p"], decomposition["td24"], decomposition["td8"]
+    kinetics, cp = decomposition["kinetics"], synthesis["cp"]
+    low = min(t_p, td24) - 30.0
+    high = max(temps["final"], td8, temps["MTSR_governing"]) + 30.0
+    grid = np.linspace(max(low, 150.0), high, 160)
+    with np.errstate(all="ignore"):
+        tmr_grid = np.asarray(dm.tmrad(kinetics, grid, cp), dtype=float)
+    result.curves["tmrad_curve"] = (grid, tmr_grid)
+    # The unmitigated course from the governing MTSR (figure 3 of the PDF); integrated on first use.
+    result.curves["adiabatic_course"] = AdiabaticCourse(kinetics, temps["MTSR_governing"], cp)
 
 
 def _add_analyses(case, result, curves: bool) -> None:
-    """The analyses composed after the core figures, in order: the cooling-failure simulation
-    (with ``[synthesis_kinetics]``), the closed-vessel pressure (with ``[solvent]``) and the
-    evaporative-cooling barrier. Each adds its own ``results`` member."""
-    if "synthesis_kinetics" in case.sections:
-        simulation.add_simulation(case, result, curves=curves)
+    """The analyses composed after the core figures and the vessels, in order: the closed-vessel
+    pressure (with ``[solvent]``) and the evaporative-cooling barrier. Each adds its own
+    ``results`` member. (The cooling-failure simulation runs before the governing MTSR.)"""
     if "solvent" in case.sections:
         pressure.add_pressure(case, result, curves=curves)
     barrier.add_barrier(case, result, curves=curves)
 
 
 def maximum_technical_temperature(case, methods, warnings) -> float:
-    """MTT [K]: as given, or the boiling point of the named solvent at the operating pressure.
-
-    Parameters
-    ----------
-    case : Case
-        Loaded case (SI quantities).
-    methods : list of str
-        Method notes of the result; the basis of the MTT is appended.
-    warnings : list of str
-        Warnings of the result; appended to when the MTT is not demonstrated.
-    """
+    """MTT [K]: as given, or the boiling point of the named solvent at the operating pressure."""
     from screen.constants import STANDARD_ATMOSPHERE
     from screen.errors import CaseError
 

@@ -165,7 +165,6 @@ def add_pressure(case, result, curves: bool = True) -> None:
     solvent_section = case.sections["solvent"]
     temps = result.curves["temperatures_K"]
     t_p = float(case.sections["process"].temperature)
-    rise_dec = float(result.results["decomposition_adiabatic_rise_K"])
     mtsr_case = float(temps["MTSR"])
     final_case = float(temps["final"])
     closing_pressure = (float(solvent_section.pressure) if solvent_section.pressure is not None
@@ -179,19 +178,16 @@ def add_pressure(case, result, curves: bool = True) -> None:
             raise CaseError(exc.message, exc.key or "solvent.name", path) from None
 
     points = [("MTSR, from [process]", mtsr_case)]
-    final_temperature, final_basis = final_case, "MTSR from [process] + decomposition rise"
+    # The final temperature of the result follows the governing MTSR (screen.analyses.governing).
+    final_temperature = final_case
+    final_basis = (result.results.get("mtsr_governing_basis", "MTSR from [process]")
+                   + " + decomposition rise")
     simulation = result.results.get("simulation")
     if isinstance(simulation, dict):
         for label, name in (("MTSR, sim. feed stopped", "mtsr_feed_stopped_degC"),
                             ("MTSR, sim. feed continuing", "mtsr_feed_continuing_degC")):
             if simulation.get(name) is not None:
                 points.append((label, simulation[name] + ZERO_CELSIUS))
-        stopped = simulation.get("mtsr_feed_stopped_degC")
-        # The MTSR definition assumes the feed stops at the failure (the simulation warns when
-        # running on would be worse); the final temperature follows the higher feed-stopped MTSR.
-        if stopped is not None and stopped + ZERO_CELSIUS + rise_dec > final_temperature:
-            final_temperature = stopped + ZERO_CELSIUS + rise_dec
-            final_basis = "simulated MTSR (feed stopped) + decomposition rise"
     points.append(("final temperature", final_temperature))
 
     warnings = result.warnings

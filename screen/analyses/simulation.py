@@ -471,20 +471,19 @@ def _add_simulation_warnings(run, result, vessel_name) -> None:
         if text.startswith("batch run:"):
             continue  # said in the summary; not a warning about the case
         warnings.append(prefix + text[0].upper() + text[1:] + ".")
-    if mtsr_stopped > case_mtsr + MTSR_WARNING_MARGIN:
-        warnings.append(
-            f"{prefix}the simulated MTSR with the feed stopped ({_c(mtsr_stopped):.1f} degC) "
-            f"exceeds the MTSR from [process] ({_c(case_mtsr):.1f} degC) on which the criticality "
-            f"class rests: the class may be too favourable; check the accumulation data.")
-    if mtsr_continuing > max(case_mtsr, mtsr_stopped) + MTSR_WARNING_MARGIN:
+    # Which MTSR governs the class is decided once, by screen.analyses.governing (it warns
+    # there); here only the declared interlock is reminded of what it must prevent.
+    if normal.is_semi_batch and process.get("feed_interlock") is True and \
+            mtsr_continuing > max(case_mtsr, mtsr_stopped) + MTSR_WARNING_MARGIN:
         reach = ("" if not math.isfinite(continuing.shortest_time_to_mtt) else
                  f"; the MTT ({_c(mtt):.1f} degC) is reached as early as "
                  f"{_hours_text(continuing.shortest_time_to_mtt)} after a failure")
         warnings.append(
-            f"{prefix}if the feed runs on after a cooling failure the mass reaches "
+            f"{prefix}if the feed ran on after a cooling failure the mass would reach "
             f"{_c(mtsr_continuing):.1f} degC (failure at "
-            f"{worst_continuing.failure_time / SECONDS_PER_HOUR:.2f} h){reach}. The MTSR and the "
-            f"class assume that the dosing stops: interlock the feed with the cooling.")
+            f"{worst_continuing.failure_time / SECONDS_PER_HOUR:.2f} h){reach}. The class rests "
+            f"on the declared feed interlock (process.feed_interlock = true): it must stop the "
+            f"dosing on every cooling failure.")
     if peak_normal >= mtt:
         warnings.append(f"{prefix}even with the cooling working the simulated temperature reaches "
                         f"{_c(peak_normal):.1f} degC, at or above the MTT ({_c(mtt):.1f} degC).")

@@ -76,6 +76,9 @@ SCHEMA: dict[str, dict[str, Field]] = {
         "max_technical_temperature": _f(
             "temperature", "MTT: boiling point at operating pressure or relief temperature"),
         "mtt_basis": _f("text", "What the MTT is (e.g. boiling point of toluene at 1.013 bar)"),
+        "feed_interlock": _f(
+            "bool", "Semi-batch: the feed stops automatically on cooling failure or high "
+            "temperature (absent: the feed is assumed to run on, fail closed)"),
     },
     "synthesis": {
         "energy": _f("specific_energy", "Heat of the desired reaction per kg of final mass",

@@ -471,9 +471,9 @@ def barrier_block(block, styles):
             f"{_number(block.get('boiling_pressure_bar'))} bar(a), the MTT "
             f"{_celsius(block.get('mtt_degC'))} °C; latent heat {_number(latent)} kJ/kg "
             f"({prose(block.get('latent_heat_source') or 'source not given')}).")
-    if block.get("mtsr_basis") == "simulation":
-        intro.append(f"MTSR {_celsius(block.get('mtsr_degC'))} °C from the cooling-failure "
-                     f"simulation (higher than with the stated accumulation).")
+    if block.get("mtsr_basis") not in (None, "case"):
+        intro.append(f"MTSR {_celsius(block.get('mtsr_degC'))} °C: "
+                     f"{prose(block.get('mtsr_basis_text') or 'from the simulation')}.")
     intro.append(f"Overall (worst vessel): <b>{verdict_word(block.get('verdict'))}</b>.")
     intro_paragraph = paragraph(" ".join(intro), styles["block_intro"])
     raw = block.get("vessels")
@@ -811,8 +811,11 @@ def scenarios_block(block, styles):
                     f"{prose(row['error'])}")
         else:
             text = f"<b>{name}:</b> {prose(row.get('basis') or 'n/a')}"
-            if row.get("mtsr_basis") == "simulation":
-                text += " (MTSR from the simulation)"
+            if row.get("mtsr_basis") not in (None, "case"):
+                from screen.runs.scenarios import MTSR_BASIS_WORDS
+
+                words = MTSR_BASIS_WORDS.get(row["mtsr_basis"], row["mtsr_basis"])
+                text += f" (MTSR: {prose(words)})"
         notes.append(bullet(text, styles["bullet_small"], "–"))
     # The heading stays with the first note; the rest may flow on.
     story.append(KeepTogether(notes[:2]))

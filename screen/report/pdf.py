@@ -251,15 +251,17 @@ def _verdict_block(results, styles):
                         f"{prose(results.get('criticality_meaning', ''))}", styles["verdict"]))
     if governing:
         lines.append(_p(governing, styles["verdict"]))
+    lines.extend(_verdict_basis(results, styles))
     lines.append(_p(
         f"<b>Severity:</b> {_level(results, 'severity_4', 'severity')}, from the adiabatic rise "
         f"of the runaway, {format_kelvin(results['runaway_adiabatic_rise_K'])} K.",
         styles["verdict"]))
     lines.append(_p(_probability_sentence(results), styles["verdict"]))
-    basis = ("decomposition kinetics from the case" if results.get("decomposition_basis") ==
-             "kinetics" else "CRUDE estimate from the DSC onset only")
-    lines.append(_p(f"<b>Basis:</b> {escape(results.get('decomposition_model', ''))} model, "
-                    f"{basis}.", styles["verdict"]))
+    if not results.get("verdict_basis_lines"):
+        basis = ("decomposition kinetics from the case" if results.get("decomposition_basis") ==
+                 "kinetics" else "CRUDE estimate from the DSC onset only")
+        lines.append(_p(f"<b>Basis:</b> {escape(results.get('decomposition_model', ''))} model, "
+                        f"{basis}.", styles["verdict"]))
     vessels = results.get("vessels") or []
     if vessels:
         lines.append(_p("<b>Stability per vessel</b> (Semenov heat balance of the "
@@ -289,21 +291,31 @@ def _verdict_block(results, styles):
 
 
 def _governing_mtsr_line(results) -> str | None:
-    """Page-1 line when a simulated MTSR higher than the stated one governs the class."""
+    """Page-1 line when an MTSR other than the stated one governs the verdict."""
     governing = results.get("mtsr_governing_degC")
-    if not isinstance(governing, (int, float)):
+    if not isinstance(governing, (int, float)) or \
+            results.get("mtsr_governing_source", "stated") == "stated":
         return None
     basis = results.get("mtsr_governing_basis") or "simulation"
-    text = (f"<b>Governing MTSR: {format_celsius(governing)} °C</b> from the {escape(basis)}, "
+    text = (f"<b>Governing MTSR: {format_celsius(governing)} °C</b>, the {escape(basis)}, "
             f"higher than the {format_celsius(results.get('mtsr_degC'))} °C from the stated "
             f"accumulation")
     stated_class = results.get("criticality_class_stated_mtsr")
-    if stated_class is not None:
-        text += (f"; it raises the class from {escape(stated_class)} to "
-                 f"{escape(results.get('criticality_class'))}")
+    klass = results.get("criticality_class")
+    if stated_class is not None and klass is not None and stated_class != klass:
+        text += f"; it raises the class from {escape(stated_class)} to {escape(klass)}"
     else:
-        text += "; the class rests on it"
+        text += "; the class and every figure derived from MTSR rest on it"
     return text + "."
+
+
+def _verdict_basis(results, styles) -> list:
+    """'Basis of the verdict': the engine's lines (results.verdict_basis_lines), one bullet each."""
+    lines = results.get("verdict_basis_lines") or []
+    if not lines:
+        return []
+    return [_p("<b>Basis of the verdict:</b> " + " ".join(prose(text) for text in lines),
+               styles["small"])]
 
 
 def _confidence(block) -> str | None:

@@ -297,21 +297,10 @@ BUILDERS = {
 # Rows
 
 
-def _figures_at(case, results, mtsr):
-    """TMRad at MTSR [h] and class when the simulated MTSR governs (recomputed there)."""
-    from screen.analyses.inputs import decomposition_kinetics
-    from screen.models import criticality
-    from screen.models import decomposition as dm
-
-    cp = float(case.sections["mass"].specific_heat)
-    kinetics, _ = decomposition_kinetics(case)
-    tmrad = float(dm.tmrad(kinetics, mtsr, cp)) / 3600.0
-    if results.get("criticality_class") is None:
-        return tmrad, None  # cannot be concluded (crude decomposition estimate)
-    klass = int(criticality.criticality_class(
-        float(case.sections["process"].temperature), mtsr,
-        float(results["mtt_degC"]) + ZERO_CELSIUS, float(results["td24_degC"]) + ZERO_CELSIUS))
-    return tmrad, klass
+#: Short words for the MTSR basis of a row (screen.analyses.barrier.governing_mtsr).
+MTSR_BASIS_WORDS = {"simulation": "simulated, feed stopped",
+                    "simulation-feed-continuing": "simulated, feed continuing",
+                    "feed-continuing-bound": "feed-continuing bound"}
 
 
 def row_figures(case, result) -> dict:
@@ -335,12 +324,10 @@ def row_figures(case, result) -> dict:
     from screen.analyses.barrier import governing_mtsr
 
     r = result.results
+    # Every figure of the result already follows the governing MTSR (screen.analyses.governing).
     mtsr, basis = governing_mtsr(r)
-    if basis == "simulation":
-        tmrad, klass = _figures_at(case, r, mtsr)
-    else:
-        tmrad, klass = float(r["tmrad_at_mtsr_h"]), r["criticality_class"]
-        klass = None if klass is None else int(klass)
+    tmrad, klass = float(r["tmrad_at_mtsr_h"]), r["criticality_class"]
+    klass = None if klass is None else int(klass)
     barrier = r.get("barrier") or {}
     verdict = barrier.get("verdict", "fails") if barrier.get("assessed") else "not assessed"
     reason = barrier.get("reason")
@@ -560,8 +547,8 @@ def _summary_lines(heading, rows) -> list[str]:
         text = f"{row['name']}: " + (row["basis"] or "")
         if row["error"] is not None:
             text = f"{row['name']}: SCREENING FAILED, consequence unknown: {row['error']}"
-        elif row.get("mtsr_basis") == "simulation":
-            text += " (MTSR from the simulation)"
+        elif row.get("mtsr_basis") not in (None, "case"):
+            text += f" (MTSR: {MTSR_BASIS_WORDS.get(row['mtsr_basis'], row['mtsr_basis'])})"
         lines.extend(textwrap.wrap(text, WIDTH, initial_indent="  - ",
                                    subsequent_indent="    "))
     return lines

@@ -413,6 +413,12 @@ class _Context:
     nominal_mass_ratio: float
     synthesis_from_energy: bool
     vessels: list = field(default_factory=list)
+    #: Semi-batch without a declared feed interlock and without a simulation: the MTSR is at
+    #: least the feed-continuing bound T_p + dT_ad (screen.analyses.governing).
+    feed_continuing_bound: bool = False
+    #: Simulated MTSR candidate that governed the nominal screening [K] (held fixed over the
+    #: samples: the simulation is not rerun per sample), or None.
+    simulated_mtsr_floor: float | None = None
 
 
 def _context(case, results) -> tuple[_Context, dict[str, float]]:
@@ -446,6 +452,12 @@ def _context(case, results) -> tuple[_Context, dict[str, float]]:
         nominal_mass_ratio=float(results["accumulation_mass_ratio"]),
         synthesis_from_energy=syn.given("energy"),
         vessels=vessels,
+        feed_continuing_bound=results.get("mtsr_governing_source") == "feed-continuing-bound"
+        or (process.mode == "semi-batch" and process.get("feed_interlock") is not True
+            and not isinstance(results.get("simulation"), dict)),
+        simulated_mtsr_floor=(float(results["mtsr_governing_degC"]) + ZERO_CELSIUS
+                              if str(results.get("mtsr_governing_source", "")).startswith(
+                                  "simulation") else None),
     )
     return context, base
 
@@ -563,6 +575,11 @@ def _compose(values, context, size, crit, dm):
         accumulation = values.get("process.accumulation", 1.0)
         ratio = 1.0
     mtsr = full(np.asarray(t_p) + np.asarray(accumulation) * rise_syn / np.asarray(ratio))
+    # The governing MTSR, as in screen.analyses.governing (ties to the higher value).
+    if context.feed_continuing_bound:
+        mtsr = np.maximum(mtsr, full(np.asarray(t_p) + rise_syn))
+    if context.simulated_mtsr_floor is not None:
+        mtsr = np.maximum(mtsr, context.simulated_mtsr_floor)
     if context.mtt_from_case:
         mtt = full(values["process.max_technical_temperature"])
     else:
@@ -1090,7 +1107,8 @@ def compose_block(values, context, size: int) -> dict:
 def _check_nominal(case, results, context, base, crit, dm) -> None:
     """The vectorised composition must reproduce the scalar engine at the case values."""
     nominal = _compose(dict(base), context, 1, crit, dm)
-    pairs = [("MTSR", nominal["mtsr"][0] - ZERO_CELSIUS, results["mtsr_degC"]),
+    pairs = [("MTSR", nominal["mtsr"][0] - ZERO_CELSIUS,
+              results.get("mtsr_governing_degC", results["mtsr_degC"])),
              ("TD24", nominal["td24"][0] - ZERO_CELSIUS, results["td24_degC"]),
              ("TMRad at MTSR", nominal["tmrad_at_mtsr"][0] / SECONDS_PER_HOUR,
               results["tmrad_at_mtsr_h"]),
