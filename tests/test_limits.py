@@ -59,6 +59,7 @@ temperature = "80 degC"
 mode = "semi-batch"
 accumulation = 0.55
 accumulation_mass_ratio = 0.85
+feed_interlock = true
 max_technical_temperature = "{mtt}"
 [synthesis]
 energy = "{q_syn}"

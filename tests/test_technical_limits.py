@@ -76,6 +76,7 @@ def test_closed_vessel_mtt_per_vessel_and_class_from_the_most_critical_vessel():
     # 158 degC, above TD24 (154 degC): class 2, not 1 (Stoessel 2008 ch. 3: MTT of a closed
     # reactor = temperature at the relief set pressure).
     data = _raw("acylation_semibatch_kinetics.toml")
+    data["process"]["feed_interlock"] = True  # the demo of item 4 is on the feed-stopped MTSR
     open_result = _screen(copy.deepcopy(data))
     data["vessel"][0]["closed"] = True
     result = _screen(data)

@@ -55,7 +55,13 @@ class ScreeningResult:
     cautions: tuple[str, ...] = CAUTIONS
 
     def to_json_dict(self, generated_at: str | None = None) -> dict[str, Any]:
-        """JSON-ready dict. Only ``generated_at`` varies between identical runs."""
+        """JSON-ready dict. Only ``generated_at`` varies between identical runs.
+
+        Parameters
+        ----------
+        generated_at : str or None
+            ISO 8601 time stamp written as ``generated_at``; None omits it (reproducible output).
+        """
         case = self.case
         header = case.sections["case"]
         return {
@@ -471,7 +477,17 @@ def _add_analyses(case, result, curves: bool) -> None:
 
 
 def maximum_technical_temperature(case, methods, warnings) -> float:
-    """MTT [K]: as given, or the boiling point of the named solvent at the operating pressure."""
+    """MTT [K]: as given, or the boiling point of the named solvent at the operating pressure.
+
+    Parameters
+    ----------
+    case : Case
+        Loaded case (SI quantities).
+    methods : list of str
+        Method notes of the result; the basis of the MTT is appended.
+    warnings : list of str
+        Warnings of the result; appended to when the MTT is not demonstrated.
+    """
     from screen.constants import STANDARD_ATMOSPHERE
     from screen.errors import CaseError
 

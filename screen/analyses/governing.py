@@ -155,6 +155,7 @@ def governing_warnings(governing: GoverningMtsr, stated_class, governing_class) 
     Parameters
     ----------
     governing : GoverningMtsr
+        The governing MTSR decided by :func:`govern_mtsr`.
     stated_class : int or None
         Class at the stated MTSR.
     governing_class : int or None
@@ -269,9 +270,11 @@ def assumptions(case, results, governing: GoverningMtsr) -> list[dict]:
     Parameters
     ----------
     case : screen.io.case.Case
+        Validated case (SI values).
     results : dict
         ``ScreeningResult.results`` with the core figures.
     governing : GoverningMtsr
+        The governing MTSR decided by :func:`govern_mtsr`.
 
     Returns
     -------
@@ -321,7 +324,17 @@ def verdict_basis_lines(results) -> list[str]:
 
 
 def add_assumptions(case, result, governing: GoverningMtsr) -> None:
-    """Add ``results["assumptions"]`` and ``results["verdict_basis_lines"]`` (engine step)."""
+    """Add ``results["assumptions"]`` and ``results["verdict_basis_lines"]`` (engine step).
+
+    Parameters
+    ----------
+    case : screen.io.case.Case
+        Validated case (SI values).
+    result : screen.analyses.engine.ScreeningResult
+        Result with the core figures; changed in place.
+    governing : GoverningMtsr
+        The governing MTSR decided by :func:`govern_mtsr`.
+    """
     r = result.results
     r["assumptions"] = assumptions(case, r, governing)
     r["verdict_basis_lines"] = verdict_basis_lines(r)

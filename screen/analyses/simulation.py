@@ -473,7 +473,8 @@ def _add_simulation_warnings(run, result, vessel_name) -> None:
         warnings.append(prefix + text[0].upper() + text[1:] + ".")
     # Which MTSR governs the class is decided once, by screen.analyses.governing (it warns
     # there); here only the declared interlock is reminded of what it must prevent.
-    if normal.is_semi_batch and process.get("feed_interlock") is True and \
+    interlock = result.case.sections["process"].get("feed_interlock")
+    if normal.is_semi_batch and interlock is True and \
             mtsr_continuing > max(case_mtsr, mtsr_stopped) + MTSR_WARNING_MARGIN:
         reach = ("" if not math.isfinite(continuing.shortest_time_to_mtt) else
                  f"; the MTT ({_c(mtt):.1f} degC) is reached as early as "
