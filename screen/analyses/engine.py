@@ -372,10 +372,6 @@ def _mtsr_figures(case, result, synthesis, decomposition, mtt, governing) -> Non
             reported_class = None
             probability_6 = probability_3 = None
     verdict = _verdict_text(klass, severity_4, probability_6, verdict_status)
-    if governing.source != "stated" and reported_class is not None:
-        verdict += (f" The class rests on the {governing.basis} ({to_celsius(mtsr):.1f} degC), "
-                    f"not on the MTSR from the stated accumulation "
-                    f"({to_celsius(synthesis['mtsr']):.1f} degC).")
     r.update({
         "mtsr_governing_degC": to_celsius(mtsr),
         "mtsr_governing_basis": governing.basis,

@@ -209,32 +209,26 @@ def _feed_assumption(governing: GoverningMtsr):
 
 
 def _accumulation_assumptions(case, results) -> list[dict]:
+    """One item: the stated (or default) accumulation with its source, the mass ratio in
+    semi-batch and the simulated maximum where a simulation ran."""
     process = case.sections["process"]
-    out = []
     accumulation = results["accumulation"]
     if process.given("accumulation"):
-        source = process.accumulation_basis or (
-            "stated maximum thermal accumulation (reaction calorimetry)"
-            if process.mode == "semi-batch" else "stated")
-        out.append(_assumption("process.accumulation", accumulation, "declared",
-                               f"Accumulation X_ac {accumulation:.3g}: {source}."))
+        basis = "declared"
+        text = f"Accumulation X_ac {accumulation:.3g}: " + (process.accumulation_basis or (
+            "stated (reaction calorimetry)" if process.mode == "semi-batch" else "stated"))
     else:
-        out.append(_assumption("process.accumulation", accumulation, "default",
-                               f"Accumulation X_ac {accumulation:.3g}: batch, all charged at "
-                               f"the start."))
+        basis = "default"
+        text = f"Accumulation X_ac {accumulation:.3g}: batch, all charged at the start"
     if process.mode == "semi-batch":
         from screen.analyses.inputs import accumulation_mass_ratio
 
-        ratio, basis = accumulation_mass_ratio(case)
-        out.append(_assumption("process.accumulation_mass_ratio", ratio, basis,
-                               f"Mass at the maximum accumulation / final mass {ratio:.3g}."))
+        ratio, ratio_basis = accumulation_mass_ratio(case)
+        text += f"; mass ratio {ratio:.3g} ({ratio_basis})"
     simulation = results.get("simulation")
     if isinstance(simulation, dict) and simulation.get("accumulation_max") is not None:
-        out.append(_assumption(
-            "simulation.accumulation_max", simulation["accumulation_max"], "derived",
-            f"Simulated maximum accumulation {simulation['accumulation_max']:.3g} "
-            f"([synthesis_kinetics])."))
-    return out
+        text += f"; simulated maximum {simulation['accumulation_max']:.3g}"
+    return [_assumption("process.accumulation", accumulation, basis, text + ".")]
 
 
 def _mtt_assumption(case, results) -> dict:
@@ -286,10 +280,6 @@ def assumptions(case, results, governing: GoverningMtsr) -> list[dict]:
     if feed is not None:
         out.append(feed)
     out.extend(_accumulation_assumptions(case, results))
-    out.append(_assumption(
-        "mtsr_governing", results["mtsr_governing_degC"],
-        "declared" if governing.source == "stated" else "derived",
-        f"Governing MTSR {results['mtsr_governing_degC']:.1f} degC: {governing.basis}."))
     out.append(_mtt_assumption(case, results))
     out.append(_assumption(
         "phi", 1.0, "default",
