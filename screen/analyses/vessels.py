@@ -235,8 +235,23 @@ def vessel_results(case, kinetics, mtsr, tmrad_mtsr_h=None):
                 entry.get("synthesis_cooling_ratio") is not None
                 and entry["synthesis_cooling_ratio"] < 1.0):
             warnings.append(f"{vessel.name}: {entry['synthesis_verdict']}")
+        entry["decomposition_stability"] = DECOMPOSITION_STABILITY_WORDS[entry["stability"]]
+        entry["synthesis_cooling"] = SYNTHESIS_COOLING_WORDS.get(
+            entry.get("synthesis_stability"), "cannot conclude")
         entries.append(entry)
     return entries, curves, warnings
+
+
+#: The one word per vessel for the decomposition (JSON ``decomposition_stability``), decided
+#: here once from the Semenov outcome; every surface prints it (issue 13).
+DECOMPOSITION_STABILITY_WORDS = {"stable": "recoverable", "mtsr-above-no-return": "not recoverable",
+                                 "no-stable-point": "not recoverable",
+                                 "cannot-conclude": "cannot conclude"}
+#: The one word per vessel for the synthesis cooling (JSON ``synthesis_cooling``): a computed
+#: failure is "insufficient"; missing data or the dosing-average estimate (not an upper bound of
+#: the peak) is "cannot conclude", never "adequate" (fail closed).
+SYNTHESIS_COOLING_WORDS = {"stable": "adequate", "unstable": "insufficient",
+                           "stable-estimate": "cannot conclude", "not assessed": "cannot conclude"}
 
 
 #: Safety figures of a vessel whose Semenov analysis is not defined: all null, and no
