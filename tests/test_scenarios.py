@@ -201,13 +201,70 @@ def test_contamination_divides_the_zero_order_tmrad_by_the_factor(decomposition)
                    "decomposition.reference_rate": None,
                    "decomposition.reference_temperature": None,
                    "decomposition.onset_temperature": "230 degC"}
-    _, result = run(raw_case(scenarios={"decomposition_rate_factor": 8.0}, **changes))
+    case, result = run(raw_case(scenarios={"decomposition_rate_factor": 8.0}, **changes))
     base, contaminated = row(result, "base"), row(result, "decomposition_rate_factor")
     assert contaminated["mtsr_degC"] == pytest.approx(base["mtsr_degC"], rel=1e-12)
+    if decomposition == "kinetics":
+        # Issue 18 item 10: the A x f variant and the lowered-E variant are both screened and
+        # the more critical is kept; the A x f variant itself divides TMRad by f.
+        from screen.analyses.engine import screen_case
+        from screen.runs.scenarios import _contamination
+
+        times_f, lowered = _contamination(case, 8.0)
+        r = screen_case(times_f.case, curves=False).results
+        assert r["tmrad_at_mtsr_h"] == pytest.approx(base["tmrad_at_mtsr_h"] / 8.0, rel=1e-9)
+        r_low = screen_case(lowered.case, curves=False).results
+        assert contaminated["td24_degC"] == pytest.approx(min(r["td24_degC"], r_low["td24_degC"]))
+        assert "more critical" in contaminated["basis"]
+        return
     assert contaminated["tmrad_at_mtsr_h"] == pytest.approx(base["tmrad_at_mtsr_h"] / 8.0,
                                                             rel=1e-9)
     assert contaminated["tmrad_ratio"] == pytest.approx(1.0 / 8.0, rel=1e-9)
     assert contaminated["td24_degC"] < base["td24_degC"]
+
+
+def test_contamination_lowered_activation_energy_keeps_f_at_the_reference_temperature():
+    # E' = E - R T_ref ln f (derived): k'(T_ref)/k(T_ref) = f, and below T_ref the factor
+    # f^(T_ref/T) is larger (Arrhenius).
+    import math
+
+    from screen.constants import GAS_CONSTANT
+    from screen.runs.scenarios import _contamination
+
+    case, _ = run(raw_case(scenarios={"decomposition_rate_factor": 8.0}))
+    dec = case.sections["decomposition"]
+    _, lowered = _contamination(case, 8.0)
+    new = lowered.case.sections["decomposition"]
+    t_ref = float(dec.reference_temperature)
+    assert new.activation_energy == pytest.approx(
+        dec.activation_energy - GAS_CONSTANT * t_ref * math.log(8.0), rel=1e-12)
+    assert new.reference_rate == pytest.approx(8.0 * dec.reference_rate, rel=1e-12)
+
+
+def test_faster_dosing_scales_the_peak_by_the_larger_factor():
+    # Issue 18 item 10: a dosing-controlled heat release follows the feed rate (Stoessel 2008
+    # ch. 7, from memory): dosing 3x faster triples the peak even when the accumulation can
+    # only rise from 0.5 to 1 (ratio 2).
+    from screen.runs.scenarios import _dosing_faster
+
+    raw = raw_case(scenarios={"dosing_rate_factor": 3.0})
+    raw["synthesis"]["peak_heat_release_rate"] = "10 W/kg"
+    raw["process"]["accumulation"] = 0.5
+    case, _ = run(raw)
+    estimate = _dosing_faster(case, 3.0)[-1]
+    assert estimate.case.sections["process"].accumulation == pytest.approx(1.0)
+    assert estimate.case.sections["synthesis"].peak_heat_release_rate == pytest.approx(30.0)
+
+
+def test_colder_wrong_coolant_without_kinetics_bounds_the_accumulation():
+    # Issue 18 item 10: a colder mass accumulates more; without kinetics the bound X_ac = 1
+    # (everything dosed accumulates, final mass) is taken and stated.
+    raw = raw_case(scenarios={"coolant_temperature": "-10 degC"})
+    case, result = run(raw)
+    assert case.sections["process"].mode == "semi-batch"
+    wrong = row(result, "coolant_temperature")
+    assert wrong["accumulation"] == pytest.approx(1.0)
+    assert "bounded by X_ac = 1" in wrong["basis"]
 
 
 def test_wrong_coolant_replaces_every_vessel_coolant():
@@ -393,3 +450,28 @@ def test_example_case_is_invented_and_commented():
         stripped = line.strip()
         if stripped and not stripped.startswith(("#", "[")):
             assert "#" in stripped, f"key without a comment: {line}"
+
+
+def test_double_charge_keeps_the_molar_enthalpy():
+    # Issue 13 item 4: with synthesis kinetics and [synthesis] energy (no molar enthalpy), the
+    # double-charge variant re-derived dH_r from the doubled energy and the extent the doubled
+    # B can reach (min(A, 2 B)), about -158 instead of -95 kJ/mol. The molar enthalpy is a
+    # property of the reaction (definition: heat per mol of reaction, Stoessel 2008 ch. 2): it
+    # must stay that of the base case. Base value: 166.25 kJ/kg x 4000 kg / 7000 mol = 95 kJ/mol.
+    import copy
+    import pathlib
+
+    from screen.io.case import build_case, load_case
+    from screen.io.simulation_inputs import resolve_inputs
+    from screen.runs.scenarios import _double_charge
+
+    path = pathlib.Path(__file__).parent.parent / "cases" / "acylation_semibatch_kinetics.toml"
+    raw = copy.deepcopy(load_case(str(path)).raw)
+    del raw["synthesis"]["molar_enthalpy"], raw["synthesis"]["limiting_amount"]
+    raw["synthesis"]["energy"] = "166.25 kJ/kg"
+    case = build_case(raw, path="<test>")
+    base = resolve_inputs(case.sections, case.vessels, case.path, [])
+    assert base.molar_enthalpy == pytest.approx(-95e3, rel=1e-9)
+    variant = _double_charge(case, True)[0].case
+    doubled = resolve_inputs(variant.sections, variant.vessels, variant.path, [])
+    assert doubled.molar_enthalpy == pytest.approx(-95e3, rel=1e-9)

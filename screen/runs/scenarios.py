@@ -40,9 +40,10 @@ METHOD_TEXT = (
     "X_ac -> min(1, F X_ac) (design). Dosing at T_D < T_p: kinetics re-simulated, else "
     "X_ac -> min(1, X_ac k(T_p)/k(T_D)) with synthesis.activation_energy, X_ac = 1 without it "
     "(design). Agitation lost: everything dosed accumulates, X_ac = 1 with the final mass "
-    "(derived). Wrong coolant: every vessel's coolant temperature replaced. Contamination: "
-    "decomposition rate x factor (A or reference rate; an onset-only estimate shifts the onset "
-    "accordingly, derived). See docs/scenarios.md.")
+    "(derived). Wrong coolant: every vessel's coolant temperature replaced; colder without "
+    "kinetics: X_ac = 1 bound. Contamination: decomposition rate x factor (A or reference rate), "
+    "and a lowered E (E' = E - R T_ref ln f), the more critical kept; an onset-only estimate "
+    "shifts the onset accordingly (derived). See docs/scenarios.md.")
 
 
 # --------------------------------------------------------------------------------------------
@@ -64,6 +65,8 @@ class Attempt:
     case: object
     basis: str
     needs_simulation: bool = False
+    #: One of several models of the same deviation: all are screened, the most critical kept.
+    alternative: bool = False
 
 
 def make_variant(case, label, changes=None, vessel_changes=None, drop=()):
@@ -145,6 +148,15 @@ def _double_charge(case, value):
                 key: 2.0 * kinetics.get(key) for key in ("initial_amount_b", "feed_amount")
                 if kinetics.get(key)}
             basis += "; kinetics: B charged and dosed x2 in the same dosing time"
+        if kinetics.molar_enthalpy is None and synthesis.molar_enthalpy is None:
+            # The molar reaction enthalpy is a property of the reaction: keep the base case's
+            # value (derived there from synthesis.energy), instead of re-deriving it from the
+            # doubled energy and the extent the double charge can reach (issue 13 item 4).
+            from screen.io.simulation_inputs import resolve_inputs
+
+            enthalpy = resolve_inputs(case.sections, case.vessels, case.path, []).molar_enthalpy
+            changes["synthesis_kinetics"]["molar_enthalpy"] = float(enthalpy)
+            basis += f"; molar enthalpy kept at {float(enthalpy) / 1e3:.4g} kJ/mol"
         return [Attempt(make_variant(case, "double charge", changes), basis + " (simulated)")]
     return [Attempt(make_variant(case, "double charge", changes), basis)]
 
@@ -167,12 +179,17 @@ def _dosing_faster(case, factor):
             f"MTSR = higher of the case accumulation and the simulated worst case",
             needs_simulation=True))
     ratio = estimate / accumulation if accumulation > 0 else None
+    # The dosing-controlled heat release follows the feed rate: the peak scales by the dosing
+    # factor, or by the accumulation ratio where that is larger (issue 18 item 10).
+    peak_factor = None if ratio is None else max(ratio, factor)
     changes = {"process": {"accumulation": estimate},
-               "synthesis": {**common, **_scaled_peak(case, ratio)}}
+               "synthesis": {**common, **_scaled_peak(case, peak_factor)}}
     attempts.append(Attempt(
         make_variant(case, "dosing faster", changes),
         f"estimate (design): accumulation scales with the feed rate, X_ac = min(1, "
-        f"{accumulation:.3g} x {factor:g}) = {estimate:.3g}"))
+        f"{accumulation:.3g} x {factor:g}) = {estimate:.3g}; peak heat release x "
+        f"{(peak_factor or float('nan')):.3g} (the larger of the dosing factor and the "
+        f"accumulation ratio)"))
     return attempts
 
 
@@ -254,12 +271,29 @@ def _wrong_coolant(case, temperature):
 
     basis = (f"coolant at {temperature - ZERO_CELSIUS:.1f} degC in every vessel (condensers "
              f"unchanged)")
+    process = case.sections["process"]
+    colder = any(temperature < float(v.coolant_temperature) for v in case.vessels)
+    changes = None
     if "synthesis_kinetics" in case.sections:
         basis += "; re-simulated"
+    elif process.mode == "semi-batch" and colder:
+        # A colder mass reacts more slowly and accumulates more; without kinetics the amount is
+        # unknown: bounded by everything dosed accumulating (issue 18 item 10; conservative).
+        accumulation = _accumulation(case)
+        changes = {"process": {"accumulation": 1.0, "accumulation_mass_ratio": 1.0},
+                   "synthesis": _scaled_peak(case, 1.0 / accumulation if accumulation > 0
+                                             else None)}
+        basis += ("; colder coolant without synthesis kinetics: the extra accumulation is "
+                  "unknown, bounded by X_ac = 1 with the final mass (everything dosed "
+                  "accumulates; conservative)")
+    elif process.mode == "semi-batch":
+        basis += ("; a warmer coolant does not raise the accumulation: MTSR and class as in the "
+                  "base case, only the vessel heat balance changes (stated)")
     else:
-        basis += ("; without synthesis kinetics only the vessel heat balance changes, not MTSR "
-                  "or the class")
-    return [Attempt(make_variant(case, "wrong coolant", vessel_changes=replaced), basis)]
+        basis += ("; batch: the accumulation is already that of the whole charge, only the "
+                  "vessel heat balance changes")
+    return [Attempt(make_variant(case, "wrong coolant", changes, vessel_changes=replaced),
+                    basis)]
 
 
 def _contamination(case, factor):
@@ -280,7 +314,35 @@ def _contamination(case, factor):
         basis = (f"onset-only estimate: rate x{factor:g} moves the onset from "
                  f"{onset - ZERO_CELSIUS:.1f} to {shifted - ZERO_CELSIUS:.1f} degC "
                  f"(1/T' = 1/T + R ln f / E, derived)")
-    return [Attempt(make_variant(case, "contamination", {"decomposition": changes}), basis)]
+        return [Attempt(make_variant(case, "contamination", {"decomposition": changes}), basis)]
+    attempts = [Attempt(make_variant(case, "contamination", {"decomposition": changes}),
+                        basis, alternative=True)]
+    lowered = _contamination_lower_activation_energy(case, factor)
+    if lowered is not None:
+        attempts.append(lowered)
+    return attempts
+
+
+def _contamination_lower_activation_energy(case, factor):
+    """Catalysis usually lowers E: E' = E - R T_ref ln f gives the same factor f at T_ref (the
+    measured reference temperature) and a larger one below it (derived; issue 18 item 10)."""
+    dec = case.sections["decomposition"]
+    t_ref = dec.reference_temperature or dec.lowest_measured_temperature
+    if t_ref is None or dec.activation_energy is None or factor <= 1.0:
+        return None
+    energy = float(dec.activation_energy)
+    lowered = energy - GAS_CONSTANT * float(t_ref) * math.log(factor)
+    if lowered < 0.25 * energy:
+        return None  # beyond any plausible catalysis: the A x f variant alone
+    changes = {"activation_energy": lowered}
+    if dec.reference_rate is not None:
+        changes["reference_rate"] = dec.reference_rate * factor
+    basis = (f"catalysis with a lower activation energy: E {energy / 1e3:.4g} -> "
+             f"{lowered / 1e3:.4g} kJ/mol (E' = E - R T_ref ln f, T_ref "
+             f"{float(t_ref) - ZERO_CELSIUS:.1f} degC: rate x{factor:g} there, more below; "
+             f"derived)")
+    return Attempt(make_variant(case, "contamination", {"decomposition": changes}), basis,
+                   alternative=True)
 
 
 BUILDERS = {
@@ -367,6 +429,13 @@ def _run(key, label, value, case):
     try:
         attempts = BUILDERS[key](case, value)
         chosen = None
+        if len(attempts) > 1 and all(a.alternative for a in attempts):
+            screened = [(a, screen_case(a.case, curves=False)) for a in attempts]
+            chosen = max(screened, key=lambda item: (
+                _class_rank(item[1].results.get("criticality_class_computed")),
+                -float(item[1].results["td24_degC"]),
+                -float(item[1].results["tmrad_at_mtsr_h"])))
+            attempts = []
         for attempt in attempts:
             variant_result = screen_case(attempt.case, curves=False)
             chosen = (attempt, variant_result)
@@ -375,6 +444,8 @@ def _run(key, label, value, case):
         attempt, variant_result = chosen
         row = row_figures(attempt.case, variant_result)
         row["basis"] = attempt.basis
+        if attempt.alternative:
+            row["basis"] += " (the more critical of the variants screened)"
         row["error"] = None
     except ScreenError as exc:
         row = {"basis": None, "error": exc.one_line()}
