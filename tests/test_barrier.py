@@ -240,7 +240,10 @@ def test_verdict_flips_where_condenser_capacity_equals_the_heat_load():
     assert below["barrier_verdict"] == "fails"
     assert below["reasons"][0].startswith("condenser")
     assert above["barrier_verdict"] == "doubtful"
-    assert far["barrier_verdict"] == "holds"
+    # Far above the root the condenser holds (the level swell, with the fill at the MTT since
+    # issue 18 item 7, may keep the vessel "doubtful").
+    assert any(r.startswith("condenser") and r.endswith("(holds)") for r in far["reasons"])
+    assert far["barrier_verdict"] != "fails"
     assert above["heat_release_rate_limit_kW"] * 1e3 == pytest.approx(load, rel=1e-6)
 
 

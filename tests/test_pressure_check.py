@@ -250,3 +250,61 @@ def test_above_critical_temperature_without_set_pressure_is_not_acceptable(tmp_p
     assert "critical temperature" in vessel["reason"]
     lines = "\n".join(result.results["pressure"]["summary_lines"])
     assert "above T_c" in lines
+
+
+def _perry_density(cas, molar_mass, temperature):
+    """Liquid density from the DIPPR 105 coefficients of Perry's 8th ed. (Table 2-32) in the
+    chemicals package, an independent correlation. [kg/m^3]"""
+    import chemicals.volume as volume
+    from chemicals.dippr import EQ105
+
+    volume._load_rho_data()
+    row = volume.rho_data_Perry_8E_105_l.loc[cas]
+    return EQ105(temperature, row["C1"], row["C2"], row["C3"], row["C4"]) * molar_mass
+
+
+@pytest.mark.parametrize("name, cas", [("toluene", "108-88-3"), ("acetic acid", "64-19-7"),
+                                       ("methanol", "67-56-1")])
+@pytest.mark.parametrize("celsius", [25.0, 100.0, 150.0, 200.0])
+def test_liquid_density_against_perry_dippr105(name, cas, celsius):
+    # Rackett form fitted to the table's two densities (screen.models.solvents.liquid_density)
+    # against DIPPR 105 (Perry's 8th ed., via chemicals): within 1.5 % up to 200 degC.
+    from screen.models.solvents import liquid_density, lookup_solvent
+
+    solvent = lookup_solvent(name)
+    t = celsius + ZERO_CELSIUS
+    assert liquid_density(solvent, t) == pytest.approx(
+        _perry_density(cas, solvent.molar_mass, t), rel=0.015)
+
+
+def test_liquid_expansion_that_fills_the_vessel_is_flagged():
+    # Issue 18 item 8: the acylation runaway takes toluene from 50 to about 298 degC; the
+    # liquid volume grows by rho(T_p)/rho(T_final) (about 1.7, DIPPR 105 via chemicals) and
+    # fills the 6.3 m3 vessel: liquid-full warning, the pressure is a lower bound.
+    import pathlib
+
+    from screen.io.case import load_case
+
+    case = load_case(pathlib.Path(__file__).parent.parent / "cases"
+                     / "acylation_semibatch_kinetics.toml")
+    result = screen_case(case, curves=False)
+    vessel = result.results["pressure"]["vessels"][0]
+    expansion = vessel["liquid_expansion"]
+    t_p = float(case.sections["process"].temperature)
+    t_f = expansion["temperature_K"]
+    expected = (_perry_density("108-88-3", 0.09214, t_p)
+                / _perry_density("108-88-3", 0.09214, t_f))
+    assert expansion["expansion_ratio"] == pytest.approx(expected, rel=0.03)
+    assert expansion["liquid_full"] is True
+    assert vessel["is_lower_bound"] is True
+    assert any("liquid-full" in w for w in result.warnings)
+
+
+def test_small_expansion_is_not_flagged(tmp_path):
+    extra = 'headspace_volume = "0.8 m^3"\nrelief_set_pressure = "1000 bar"'
+    solvent = 'name = "toluene"\npressure = "1.013 bar"\ngas_yield = "0.1 mol/kg"'
+    result = screen_text(tmp_path, case_text(solvent=solvent, vessel_extra=extra,
+                                             decomposition_energy="60 kJ/kg"))
+    vessel = result.results["pressure"]["vessels"][0]
+    assert vessel["liquid_expansion"]["liquid_full"] is False
+    assert not any("liquid-full" in w for w in result.warnings)

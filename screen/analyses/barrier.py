@@ -125,7 +125,7 @@ def solvent_properties(case, temperature) -> dict:
     section = case.sections["solvent"]
     pressure = float(section.pressure) if section.pressure is not None else STANDARD_ATMOSPHERE
     out = {"name": None, "latent_heat": None, "latent_heat_source": None, "molar_mass": None,
-           "liquid_density": None, "pressure": pressure,
+           "liquid_density": None, "fill_expansion": None, "pressure": pressure,
            "pressure_given": section.pressure is not None, "table_boiling_temperature": None}
     if section.name is not None:
         try:
@@ -134,8 +134,12 @@ def solvent_properties(case, temperature) -> dict:
             boiling = float(solvents.boiling_temperature(data, pressure))
         except ScreenError as exc:
             raise CaseError(exc.message, exc.key or "solvent.name", case.path) from None
+        # Liquid density at the MTT (issue 18 item 7), and the expansion from 25 degC, the
+        # temperature taken for mass.density (the larger expansion: conservative).
+        density_mtt = float(solvents.liquid_density(data, temperature))
+        out["fill_expansion"] = data.liquid_density_25c / density_mtt
         out.update(name=data.name, molar_mass=data.molar_mass,
-                   liquid_density=data.liquid_density_at_boiling_point,
+                   liquid_density=density_mtt,
                    table_boiling_temperature=boiling, latent_heat=latent,
                    latent_heat_source=(f"solvent table: {data.latent_heat_source}; "
                                        + ("Watson-scaled" if data.latent_heat_model == "watson"
@@ -271,11 +275,19 @@ def _condenser_capacity(vessel, mtt):
     if vessel.condenser_duty is not None:
         return float(vessel.condenser_duty), "rated condenser duty"
     if vessel.condenser_ua is not None:
+        outlet = vessel.condenser_coolant_outlet_temperature
         capacity = float(evaporation.condenser_capacity(
             overall_conductance=vessel.condenser_ua,
-            coolant_temperature=vessel.condenser_coolant_temperature, boiling_temperature=mtt))
+            coolant_temperature=vessel.condenser_coolant_temperature, boiling_temperature=mtt,
+            coolant_outlet_temperature=outlet))
+        if outlet is not None:
+            return capacity, (f"U A {vessel.condenser_ua:.4g} W/K x log-mean temperature "
+                              f"difference (coolant {vessel.condenser_coolant_temperature - ZERO_CELSIUS:.1f}"
+                              f" -> {outlet - ZERO_CELSIUS:.1f} degC)")
         return capacity, (f"U A {vessel.condenser_ua:.4g} W/K x (MTT - "
-                          f"{vessel.condenser_coolant_temperature - ZERO_CELSIUS:.1f} degC)")
+                          f"{vessel.condenser_coolant_temperature - ZERO_CELSIUS:.1f} degC); "
+                          f"inlet temperature, no outlet given: an upper bound (a log-mean "
+                          f"difference would be lower; give condenser_coolant_outlet_temperature)")
     return None, None
 
 
@@ -377,6 +389,10 @@ def assess_vessel(case, results, vessel, vessel_entry, context) -> dict:
         missing = True
 
     fill = vessel_entry.get("fill_fraction") if vessel_entry else None
+    if fill is not None and solvent.get("fill_expansion"):
+        # The fill at the MTT: mass.density (taken at 25 degC) expanded like the solvent.
+        entry["fill_fraction_at_mtt"] = min(float(fill) * solvent["fill_expansion"], 1.0)
+        fill = entry["fill_fraction_at_mtt"]
     fill = None if fill is None else min(float(fill), 1.0)
     assessment = None
     if not missing:
@@ -605,6 +621,16 @@ def add_barrier(case, result, curves: bool = False) -> None:
         result.warnings.append("Evaporative-cooling barrier: the case has no [vessel], so the "
                                "condenser and the vapour line cannot be checked; it counts as "
                                "failing.")
+    gas_yield = case.sections["solvent"].gas_yield if "solvent" in case.sections else None
+    condensers = [e for e in entries if e.get("condenser_capacity_kW") is not None]
+    if gas_yield and condensers:
+        # Non-condensable gas blankets the condensing surface (issue 18 item 9).
+        block["non_condensable_gas"] = True
+        result.warnings.append(
+            f"Evaporative-cooling barrier: the decomposition forms non-condensable gas "
+            f"(solvent.gas_yield {float(gas_yield):.3g} mol/kg); non-condensables blanket the "
+            f"condenser and lower its capacity, so the condenser capacity used is an upper bound "
+            f"once the decomposition has started (pad gas is taken as swept out by the vapour).")
     for entry in entries:
         if entry["barrier_verdict"] != "holds" and solvent is not None:
             result.warnings.append(f"{entry['name']}: evaporative-cooling barrier "

@@ -135,6 +135,39 @@ def _headspace(case, vessel):
     return None, "not given"
 
 
+def _liquid_expansion(case, vessel, headspace, solvent, t_p, final_temperature):
+    """Liquid volume at the final temperature against the vessel volume (issue 18 item 8).
+
+    The reaction mass is taken to expand like its solvent: V(T) = V(T_p) rho_s(T_p)/rho_s(T)
+    with :func:`screen.models.solvents.liquid_density` (Rackett form; at or above T_c the
+    critical density). V(T_p) = batch mass / mass.density (mass.density read at T_p), else
+    vessel volume - headspace. Returns None without a solvent name or without a liquid volume.
+    """
+    from screen.models.solvents import liquid_density
+
+    if solvent is None:
+        return None
+    mass = float(vessel.batch_mass or case.sections["mass"].amount)
+    density = case.sections["mass"].density
+    if density:
+        liquid = mass / float(density)
+    elif vessel.volume is not None:
+        liquid = float(vessel.volume) - headspace
+    else:
+        return None
+    if liquid <= 0.0:
+        return None
+    temperature = min(final_temperature, solvent.critical_temperature)
+    ratio = float(liquid_density(solvent, t_p)) / float(liquid_density(solvent, temperature))
+    final = liquid * ratio
+    total = liquid + headspace
+    return {"temperature_K": temperature, "liquid_volume_m3": liquid,
+            "liquid_volume_final_m3": final, "vessel_volume_m3": total,
+            "expansion_ratio": ratio, "liquid_full": bool(final >= total),
+            "basis": (f"liquid density of {solvent.name}, Rackett form fitted to the table "
+                      f"values; x{ratio:.3g} in volume")}
+
+
 def add_pressure(case, result, curves: bool = True) -> None:
     """Vapour pressures and closed-vessel pressures against the relief set pressure (engine hook).
 
@@ -249,9 +282,15 @@ def add_pressure(case, result, curves: bool = True) -> None:
         if gas_yield is None:
             lower_bound_reasons.append("solvent.gas_yield not given, decomposition gas not "
                                        "counted")
+        expansion = _liquid_expansion(case, vessel, headspace, solvent, t_p, final_temperature)
+        if expansion is not None and expansion["liquid_full"]:
+            lower_bound_reasons.append(
+                f"the liquid expands to {expansion['liquid_volume_final_m3']:.3g} m3, filling the "
+                f"vessel ({expansion['vessel_volume_m3']:.3g} m3): liquid-full, hydraulic "
+                f"overpressure; the constant-headspace pressure is a lower bound")
         total = estimate["total"]
         supercritical = estimate["vapour_status"] == ABOVE_CRITICAL
-        if set_pressure is None and supercritical:
+        if set_pressure is None and (supercritical or (expansion or {}).get("liquid_full")):
             verdict, reason = "not assessed", (
                 f"at least {total / _BAR:.4g} bar(a) ({'; '.join(lower_bound_reasons)}); no "
                 f"relief_set_pressure given: the pressure is not bounded by this screening")
@@ -278,12 +317,19 @@ def add_pressure(case, result, curves: bool = True) -> None:
             "decomposition_gas_bar": estimate["decomposition_gas"] / _BAR,
             "total_bar": None if supercritical else total / _BAR,
             "total_lower_bound_bar": total / _BAR,
+            "liquid_expansion": expansion,
             "is_lower_bound": bool(lower_bound_reasons),
             "relief_set_pressure_bar": None if set_pressure is None else float(set_pressure) / _BAR,
             "verdict": verdict,
             "reason": reason,
         }
         vessels.append(entry)
+        if expansion is not None and expansion["liquid_full"]:
+            warnings.append(
+                f"{vessel.name}: thermal expansion of the liquid up to "
+                f"{_c(expansion['temperature_K']):.0f} degC ({expansion['basis']}) fills the "
+                f"vessel: it may become liquid-full (hydraulic overpressure); the closed-vessel "
+                f"pressure, computed with a constant headspace, is a lower bound.")
         if verdict in ("exceeds", "near", "not assessed"):
             warnings.append(f"{vessel.name}: closed-vessel pressure after the runaway "
                             f"({_c(final_temperature):.0f} degC): {verdict.upper()}: {reason}.")

@@ -440,3 +440,50 @@ def latent_heat(solvent: Solvent, temperature):
         reduced = (critical - temperature_array) / (critical - solvent.latent_heat_reference_temperature)
         result = solvent.latent_heat_reference * reduced**WATSON_EXPONENT
     return float(result) if result.ndim == 0 else result
+
+
+def liquid_density(solvent: Solvent, temperature):
+    """Saturated liquid density of the pure solvent, Rackett form fitted to the two table values.
+
+    .. math:: \\rho(T) = \\rho_{25}\\, Z^{(1 - T_{r,25})^{2/7} - (1 - T_r)^{2/7}}
+
+    the temperature dependence of the Rackett equation, V = V_c Z^{1 + (1 - T_r)^{2/7}} (Rackett,
+    J. Chem. Eng. Data 15 (1970) 514; Spencer & Danner, J. Chem. Eng. Data 17 (1972) 236, with Z
+    the Rackett parameter), with Z fitted so that the curve passes through the table's densities
+    at 25 degC and at the normal boiling point (derived). Above the critical temperature there is
+    no liquid: the value at T_c (the fitted critical density) is returned, the smallest density
+    of the curve.
+
+    Parameters
+    ----------
+    solvent : Solvent
+        The solvent.
+    temperature : float or array_like
+        Temperature. [K]
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Liquid density. [kg/m^3]
+
+    Raises
+    ------
+    ModelDomainError
+        A temperature that is not finite and positive, or table densities that do not fall with
+        temperature.
+    """
+    t = np.asarray(temperature, dtype=float)
+    if not np.all(np.isfinite(t)) or np.any(t <= 0.0):
+        raise ModelDomainError(f"liquid density of {solvent.name}: temperature must be finite and "
+                               f"positive, got {temperature}")
+    tc = solvent.critical_temperature
+    t25, tb = 298.15, solvent.normal_boiling_temperature
+    rho25, rhob = solvent.liquid_density_25c, solvent.liquid_density_at_boiling_point
+    span = (1.0 - t25 / tc) ** (2.0 / 7.0) - (1.0 - tb / tc) ** (2.0 / 7.0)
+    if not (rhob < rho25 and span > 0.0):
+        raise ModelDomainError(f"liquid density of {solvent.name}: the table densities do not "
+                               f"fall with temperature ({rho25:g} at 25 degC, {rhob:g} at {tb:g} K)")
+    log_z = math.log(rhob / rho25) / span
+    reduced = np.clip(1.0 - t / tc, 0.0, None)
+    density = rho25 * np.exp(log_z * ((1.0 - t25 / tc) ** (2.0 / 7.0) - reduced ** (2.0 / 7.0)))
+    return float(density) if density.ndim == 0 else density
