@@ -964,16 +964,15 @@ def townsend_tou_equivalent(kinetics):
     """
     if kinetics.model == "zero-order":
         return kinetics
-    log_factor = (float(kinetics.log_pre_exponential_factor)
-                  + float(kinetics._log_conversion_function(
-                      np.asarray(kinetics.initial_conversion, dtype=float)))
-                  - math.log1p(-float(kinetics.initial_conversion)))
+    a0 = np.asarray(kinetics.initial_conversion, dtype=float)
+    log_factor = (np.asarray(kinetics.log_pre_exponential_factor, dtype=float)
+                  + np.asarray(kinetics._log_conversion_function(a0)) - np.log1p(-a0))
     with np.errstate(over="ignore"):
-        factor = float(np.exp(log_factor))
-    return DecompositionKinetics(model="zero-order", energy=float(kinetics.energy),
-                                 activation_energy=float(kinetics.activation_energy),
-                                 pre_exponential_factor=factor, order=0.0,
-                                 log_pre_exponential_factor=log_factor)
+        factor = np.exp(log_factor)
+    return DecompositionKinetics(model="zero-order", energy=kinetics.energy,
+                                 activation_energy=kinetics.activation_energy,
+                                 pre_exponential_factor=scalar_or_array(factor), order=0.0,
+                                 log_pre_exponential_factor=scalar_or_array(log_factor))
 
 
 # ----------------------------------------------------------------------------------------------

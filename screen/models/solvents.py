@@ -457,7 +457,7 @@ def liquid_density(solvent: Solvent, temperature):
     Parameters
     ----------
     solvent : Solvent
-        The solvent.
+        The solvent (its table densities and critical temperature). [-]
     temperature : float or array_like
         Temperature. [K]
 

@@ -411,6 +411,7 @@ class _Context:
     mtt_from_case: bool
     nominal_mtt: float
     nominal_mass_ratio: float
+    validated_range: bool
     synthesis_from_energy: bool
     vessels: list = field(default_factory=list)
     #: Semi-batch without a declared feed interlock and without a simulation: the MTSR is at
@@ -450,6 +451,7 @@ def _context(case, results) -> tuple[_Context, dict[str, float]]:
         mtt_from_case=process.max_technical_temperature is not None,
         nominal_mtt=float(results["mtt_degC"]) + ZERO_CELSIUS,
         nominal_mass_ratio=float(results["accumulation_mass_ratio"]),
+        validated_range=bool(dec.validated_range),
         synthesis_from_energy=syn.given("energy"),
         vessels=vessels,
         feed_continuing_bound=results.get("mtsr_governing_source") == "feed-continuing-bound"
@@ -593,7 +595,20 @@ def _compose(values, context, size, crit, dm):
     klass = np.asarray(crit.criticality_class(t_p, mtsr, mtt, np.where(np.isnan(td24), 0.0,
                                                                          td24)))
     klass = np.where(np.isnan(td24), 5, np.broadcast_to(klass, (size,))).astype(int)
+    tmrad_governing = tmrad_mtsr
+    if kinetics.model == "nth-order" and not context.validated_range:
+        # As screen.analyses.technical_limits: the zero-order (Townsend-Tou) figures govern
+        # where they are more critical, unless the kinetics are declared validated.
+        zero = dm.townsend_tou_equivalent(kinetics)
+        with np.errstate(all="ignore"):
+            td24_zero = full(dm.temperature_for_tmrad(zero, cp, 24.0 * SECONDS_PER_HOUR))
+            tmrad_governing = np.fmin(tmrad_mtsr, full(dm.tmrad(zero, mtsr, cp)))
+        klass_zero = np.asarray(crit.criticality_class(
+            t_p, mtsr, mtt, np.where(np.isnan(td24_zero), 0.0, td24_zero)))
+        klass_zero = np.where(np.isnan(td24_zero), 5, np.broadcast_to(klass_zero, (size,)))
+        klass = np.maximum(klass, klass_zero).astype(int)
     out = {
+        "tmrad_at_mtsr_governing": tmrad_governing,
         "process_temperature": t_p,
         "mtsr": mtsr,
         "mtt": mtt,
@@ -805,7 +820,7 @@ def _tally(figures, input_by_key, inputs, vessel_count, crit) -> dict:
     klass = figures["criticality_class"]
     td24, mtsr, mtt = figures["td24"], figures["mtsr"], figures["mtt"]
     no_td24 = np.isnan(td24)
-    tmr = figures["tmrad_at_mtsr"]
+    tmr = figures.get("tmrad_at_mtsr_governing", figures["tmrad_at_mtsr"])
     tmr_undefined = np.isnan(tmr)
     tmr_hours = np.where(tmr_undefined, 0.0, tmr / SECONDS_PER_HOUR)  # fail closed: frequent
     severity_codes = crit.severity_codes(figures["runaway_rise"])
@@ -1212,7 +1227,7 @@ def summarise(run: MonteCarloRun, case, results):
     crude = results.get("decomposition_basis") == "onset-estimate"
     most_probable = int(np.argmax(counts)) + 1
     td24, mtsr = fig["td24"], fig["mtsr"]
-    tmr = fig["tmrad_at_mtsr"]
+    tmr = fig.get("tmrad_at_mtsr_governing", fig["tmrad_at_mtsr"])
     tmr_undefined_count = tally["tmr_undefined"]
     margin = td24 - mtsr
 
