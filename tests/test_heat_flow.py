@@ -339,7 +339,7 @@ def test_demo_trace_runs():
     # Invented demo data: consistency only, never a check value.
     import pathlib
 
-    demo = pathlib.Path("cases/calorimetry/hf330_rc_semibatch.csv")
+    demo = pathlib.Path("cases/calorimetry/hf330_heat_flow_semibatch.csv")
     result = CliRunner().invoke(main, ["heat-flow", str(demo), "--initial-mass", "1.2 kg",
                                        "--specific-heat", "1.9 kJ/(kg K)", "--feed-temperature",
                                        "20 degC", "--json"])

@@ -148,7 +148,7 @@ def test_every_command_piped_prints_nothing_to_stderr(tmp_path):
         ["sweep", case, "--vary", "process.temperature=40 degC:60 degC:3", "--json"],
         ["kinetics", "--peaks", peaks, "--png-dir", str(tmp_path / "png")],
         ["kinetics", "--peaks", peaks, "--json"],
-        ["heat-flow", os.path.join(CASES, "calorimetry", "hf330_rc_semibatch.csv"),
+        ["heat-flow", os.path.join(CASES, "calorimetry", "hf330_heat_flow_semibatch.csv"),
          "--initial-mass", "1.2 kg", "--specific-heat", "1.9 kJ/(kg K)", "--png-dir",
          str(tmp_path / "png-heat-flow")],
         ["kinetics", "--adiabatic", os.path.join(CASES, "calorimetry", "hf233_adiabatic_run.csv"),

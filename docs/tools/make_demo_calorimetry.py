@@ -30,11 +30,11 @@ def main():
                             n_b_feed=1.5, rate_constant=2.5e-3, enthalpy=-118e3, cp=1900.0,
                             feed_cp=1700.0, feed_temperature=293.15, set_temperature=323.15,
                             wobble=0.25, baseline=(1.2, 0.6), noise=0.2, seed=330)
-    write_csv(OUT / "hf330_rc_semibatch.csv", trace,
+    write_csv(OUT / "hf330_heat_flow_semibatch.csv", trace,
               ["time_s", "reactor_temperature_degC", "heat_flow_W", "dosed_mass_kg"], fmt="%.5f",
               comments=[
                   "INVENTED DEMO DATA of the invented company Halvorsen Fine Chemicals: HF-330 "
-                  "acylation, reaction calorimeter run RC-2305 (not a measurement)",
+                  "acylation, reaction calorimeter run HC-2305 (not a measurement)",
                   "Simulated from known parameters by docs/tools/make_demo_calorimetry.py: "
                   "A + B -> P, dH = -118 kJ/mol, 1.5 mol B dosed as 0.45 kg at 20 degC into "
                   "1.2 kg at 50 degC, c'p 1.9 kJ/(kg K), feed c'p 1.7 kJ/(kg K), dosing "
